@@ -1,0 +1,11 @@
+import { defineConfig } from 'vitest/config';
+
+export default defineConfig({
+  test: {
+    include: ['test/**/*.test.ts'],
+    testTimeout: 120_000,
+    hookTimeout: 120_000,
+    // Two cores here and in CI: one worker per core keeps OpenCV's WASM heaps apart.
+    maxWorkers: 2,
+  },
+});
