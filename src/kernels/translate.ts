@@ -1,0 +1,43 @@
+/**
+ * Shift compensation: resample a frame so that content moved by (dx, dy) goes back, by bilinear
+ * interpolation: out(x, y) = src(x + dx, y + dy). Pixels whose source lies outside the frame get
+ * validity 0, so differencing ignores the strip the camera shake uncovered.
+ */
+import { checkNumber } from '../shared/validate.js';
+import { checkFrame, makeGrey, type Frame, type GreyFrame } from './frame.js';
+
+export function translateBilinear<T extends Frame>(src: T, dx: number, dy: number): { frame: T; valid: GreyFrame } {
+  checkFrame('src', src);
+  checkNumber('dx', dx, -src.width, src.width);
+  checkNumber('dy', dy, -src.height, src.height);
+  const { width: w, height: h, channels: ch } = src;
+  const out = new Uint8Array(src.data.length);
+  const valid = makeGrey(w, h);
+  const s = src.data;
+  for (let y = 0; y < h; y++) {
+    const sy = y + dy;
+    const inY = sy >= 0 && sy <= h - 1;
+    const y0 = Math.min(h - 1, Math.max(0, Math.floor(sy)));
+    const y1 = Math.min(h - 1, y0 + 1);
+    const fy = Math.min(1, Math.max(0, sy - y0));
+    for (let x = 0; x < w; x++) {
+      const sx = x + dx;
+      const inX = sx >= 0 && sx <= w - 1;
+      const x0 = Math.min(w - 1, Math.max(0, Math.floor(sx)));
+      const x1 = Math.min(w - 1, x0 + 1);
+      const fx = Math.min(1, Math.max(0, sx - x0));
+      const o = (y * w + x) * ch;
+      const a = (y0 * w + x0) * ch;
+      const b = (y0 * w + x1) * ch;
+      const c = (y1 * w + x0) * ch;
+      const d = (y1 * w + x1) * ch;
+      for (let k = 0; k < ch; k++) {
+        const top = s[a + k] + fx * (s[b + k] - s[a + k]);
+        const bot = s[c + k] + fx * (s[d + k] - s[c + k]);
+        out[o + k] = Math.round(top + fy * (bot - top));
+      }
+      valid.data[y * w + x] = inX && inY ? 255 : 0;
+    }
+  }
+  return { frame: { ...src, data: out }, valid };
+}
