@@ -18,7 +18,8 @@ export interface Shift {
   confidence: number;
 }
 
-const MAX_WINDOW = 256;
+// 128 px windows: enough texture for 0.1 px at analysis sizes, 4x cheaper than 256.
+const MAX_WINDOW = 128;
 const EPS_FACTOR = 1;
 
 function largestPow2(n: number): number {

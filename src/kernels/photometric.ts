@@ -14,7 +14,7 @@ export interface GainOffset {
   offset: number[];
 }
 
-const MAX_SAMPLES = 20000;
+const MAX_SAMPLES = 6000;
 const GAIN_LIMITS = [0.25, 4] as const;
 
 function fitChannel(ref: Uint8Array, cur: Uint8Array, ch: number, c: number, valid?: Uint8Array): [number, number] {

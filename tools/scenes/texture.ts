@@ -27,25 +27,31 @@ export function bumpField(rng: Rng, w: number, h: number, count: number, rMin: n
 
 /** Lattice value noise with smooth interpolation, `octaves` octaves from cell size `cell`. */
 export function valueNoise(rng: Rng, cell: number, octaves: number): Field {
-  const size = 64;
-  const tables = Array.from({ length: octaves }, () => Float32Array.from({ length: size * size }, () => rng.next()));
-  const smooth = (t: number): number => t * t * (3 - 2 * t);
+  const size = 64; // lattice period in cells; indices wrap with & 63
+  const table = new Float32Array(octaves * size * size);
+  for (let i = 0; i < table.length; i++) table[i] = rng.next();
+  const inv = Array.from({ length: octaves }, (_, o) => 2 ** o / cell);
+  let norm = 0;
+  for (let o = 0; o < octaves; o++) norm += 0.5 ** (o + 1);
   return (x, y) => {
     let v = 0;
     let amp = 0.5;
-    let c = cell;
-    let norm = 0;
-    for (const t of tables) {
-      const fx = x / c, fy = y / c;
-      const ix = Math.floor(fx), iy = Math.floor(fy);
-      const tx = smooth(fx - ix), ty = smooth(fy - iy);
-      const at = (i: number, j: number): number => t[(((j % size) + size) % size) * size + (((i % size) + size) % size)];
-      const a = at(ix, iy) + tx * (at(ix + 1, iy) - at(ix, iy));
-      const b = at(ix, iy + 1) + tx * (at(ix + 1, iy + 1) - at(ix, iy + 1));
+    for (let o = 0; o < octaves; o++) {
+      const fx = x * inv[o];
+      const fy = y * inv[o];
+      const ix = Math.floor(fx);
+      const iy = Math.floor(fy);
+      let tx = fx - ix;
+      let ty = fy - iy;
+      tx = tx * tx * (3 - 2 * tx);
+      ty = ty * ty * (3 - 2 * ty);
+      const base = o * size * size;
+      const x0 = ix & 63, x1 = (ix + 1) & 63;
+      const r0 = base + (iy & 63) * size, r1 = base + ((iy + 1) & 63) * size;
+      const a = table[r0 + x0] + tx * (table[r0 + x1] - table[r0 + x0]);
+      const b = table[r1 + x0] + tx * (table[r1 + x1] - table[r1 + x0]);
       v += amp * (a + ty * (b - a));
-      norm += amp;
       amp *= 0.5;
-      c /= 2;
     }
     return v / norm;
   };

@@ -1,0 +1,195 @@
+/**
+ * The per-event chain for a burst or a single trigger:
+ * align (phase correlation) -> normalise (gain/offset) -> background (temporal median, or the
+ * caller's background for a single image) -> change against background and previous frame ->
+ * noise-scaled SNR -> hysteresis -> 3x3 open/close -> components -> tracks -> features.
+ * Pure: frames in, numbers out. The caller decodes and chooses the analysis size.
+ */
+import { invalidArgument, notEnoughFrames } from '../shared/errors.js';
+import { maxChannelChange } from './change-image.js';
+import { labelComponents, type Blob } from './components.js';
+import { checkFrame, checkSameShape, makeGrey, type GreyFrame, type RgbFrame } from './frame.js';
+import { toLuma } from './luma.js';
+import { close3x3, open3x3 } from './morphology.js';
+import { checkParams, SNR_SCALE, type EngineParams } from './params.js';
+import { estimateShift, type Shift } from './phase-correlate.js';
+import { applyGainOffset, fitGainOffset } from './photometric.js';
+import { maxImage, orMask, toSnr } from './snr-image.js';
+import { temporalMedian } from './temporal-median.js';
+import { thresholdHysteresis } from './threshold.js';
+import { linkTracks, trackFeatures, type Track, type TrackFeatures } from './tracks.js';
+import { translateBilinear } from './translate.js';
+
+export interface EventInput {
+  frames: readonly RgbFrame[];
+  /** A background from neighbouring triggers of the same camera (their temporal median). Needed
+   *  for a single trigger; for a burst it adds a reference that shows a subject standing still
+   *  through the whole burst, which the burst's own median absorbs. */
+  background?: RgbFrame;
+  /** 255 = analyse, 0 = ignore (data strip, drawn regions). */
+  mask?: GreyFrame;
+  /** Restless-pixel weights of the deployment, 0..1 per pixel. */
+  restless?: Float32Array;
+  params?: Partial<EngineParams>;
+}
+
+export interface FrameAnalysis {
+  shift: Shift;
+  compensated: boolean;
+  gain: number[];
+  offset: number[];
+  sigma: number;
+  blobs: Blob[];
+  activeFraction: number;
+}
+
+export interface EventContext {
+  frameCount: number;
+  /** Mean share of analysed pixels that are active per frame. */
+  activeFraction: number;
+  /** Mean number of blobs per frame. */
+  blobsPerFrame: number;
+  /** Largest camera shift compensated (px) and largest exposure gain step (|gain - 1|). */
+  maxShift: number;
+  maxGainStep: number;
+  /** True for a single image with no background to compare against: motion cannot be judged. */
+  noReference: boolean;
+}
+
+export interface EventAnalysis {
+  width: number;
+  height: number;
+  frames: FrameAnalysis[];
+  tracks: Track[];
+  trackFeatures: TrackFeatures[];
+  context: EventContext;
+  /** Max SNR over frames (SNR_SCALE per sigma), for previews and the restless map. */
+  heat: GreyFrame;
+  /** Union of the cleaned masks over frames (1 = active). */
+  activity: Uint8Array;
+}
+
+function andMask(a: Uint8Array | undefined, b: Uint8Array): Uint8Array {
+  if (!a) return b;
+  const out = new Uint8Array(b.length);
+  for (let i = 0; i < b.length; i++) out[i] = a[i] && b[i] ? 255 : 0;
+  return out;
+}
+
+function medianAbsLumaDiff(a: GreyFrame, b: GreyFrame, valid?: Uint8Array): number {
+  const hist = new Uint32Array(256);
+  let n = 0;
+  for (let i = 0; i < a.data.length; i++) {
+    if (valid && !valid[i]) continue;
+    hist[Math.abs(a.data[i] - b.data[i])]++;
+    n++;
+  }
+  let acc = 0;
+  for (let v = 0; v < 256; v++) {
+    acc += hist[v];
+    if (acc >= n / 2) return v + (acc - n / 2) / Math.max(1, hist[v]) * -1 + 0.5;
+  }
+  return 255;
+}
+
+export function analyseEvent(input: EventInput): EventAnalysis {
+  const params = checkParams(input.params ?? {});
+  const frames = input.frames;
+  if (!Array.isArray(frames) || frames.length === 0) throw notEnoughFrames('frames', 1, frames?.length ?? 0);
+  frames.forEach((f, i) => {
+    checkFrame(`frames[${i}]`, f, 3);
+    checkSameShape('frames[0]', frames[0], `frames[${i}]`, f);
+  });
+  const { width, height } = frames[0];
+  const n = frames.length;
+  if (input.background) checkSameShape('frames[0]', frames[0], 'background', input.background);
+  if (input.mask) checkSameShape('frames[0]', { ...frames[0], channels: 1 }, 'mask', input.mask);
+  if (input.restless && input.restless.length !== width * height) {
+    throw invalidArgument('restless.length', String(width * height), input.restless.length);
+  }
+  const ignore = input.mask?.data;
+  const ref = n === 1 ? 0 : n >> 1;
+  const refLuma = toLuma(frames[ref]);
+  const results: FrameAnalysis[] = [];
+  const work: RgbFrame[] = [];
+  let valid: Uint8Array | undefined = ignore ? Uint8Array.from(ignore) : undefined;
+  const align = (f: RgbFrame, luma: GreyFrame): { frame: RgbFrame; shift: Shift; compensated: boolean } => {
+    const shift = estimateShift(luma, toLuma(f));
+    const plausible = shift.confidence >= params.alignMinConfidence && Math.hypot(shift.dx, shift.dy) >= 0.3;
+    if (!plausible) return { frame: f, shift, compensated: false };
+    const t = translateBilinear(f, shift.dx, shift.dy);
+    // A large subject can pull the correlation peak to its own motion. Keep the shift only if
+    // it makes the frames agree better where most pixels are: the median absolute difference.
+    if (medianAbsLumaDiff(luma, toLuma(t.frame), t.valid.data) >= 0.9 * medianAbsLumaDiff(luma, toLuma(f))) {
+      return { frame: f, shift, compensated: false };
+    }
+    valid = andMask(valid, t.valid.data);
+    return { frame: t.frame, shift, compensated: true };
+  };
+  for (let k = 0; k < n; k++) {
+    const a = k === ref ? { frame: frames[k], shift: { dx: 0, dy: 0, confidence: 1 }, compensated: false } : align(frames[k], refLuma);
+    const go = k === ref ? { gain: [1, 1, 1], offset: [0, 0, 0] } : fitGainOffset(frames[ref], a.frame, valid);
+    work.push(k === ref ? a.frame : applyGainOffset(a.frame, go));
+    results.push({ shift: a.shift, compensated: a.compensated, gain: go.gain, offset: go.offset, sigma: 0, blobs: [], activeFraction: 0 });
+  }
+  let background: RgbFrame | undefined;
+  if (n >= 3) background = temporalMedian(work);
+  let deployment: RgbFrame | undefined;
+  if (input.background) {
+    const a = align(input.background, refLuma);
+    deployment = applyGainOffset(a.frame, fitGainOffset(work[ref], a.frame, valid));
+    if (n === 1) background = deployment;
+  }
+  const minArea = Math.max(4, Math.round(params.minBlobFraction * width * height));
+  const heat = makeGrey(width, height);
+  const activity = new Uint8Array(width * height);
+  let analysed = width * height;
+  if (valid) {
+    analysed = 0;
+    for (const v of valid) if (v) analysed++;
+  }
+  const hi = params.seedSigmas * SNR_SCALE;
+  const lo = params.growSigmas * SNR_SCALE;
+  const blobsPerFrame: Blob[][] = [];
+  for (let k = 0; k < n; k++) {
+    const parts: Array<{ snr: GreyFrame; sigma: number }> = [];
+    if (background) parts.push(toSnr(maxChannelChange(work[k], background), params.minNoise, valid, input.restless));
+    if (deployment && deployment !== background) parts.push(toSnr(maxChannelChange(work[k], deployment), params.minNoise, valid, input.restless));
+    if (k > 0) parts.push(toSnr(maxChannelChange(work[k], work[k - 1]), params.minNoise, valid, input.restless));
+    else if (n === 2) parts.push(toSnr(maxChannelChange(work[0], work[1]), params.minNoise, valid, input.restless));
+    if (parts.length === 0) {
+      blobsPerFrame.push([]);
+      continue;
+    }
+    let snr = parts[0].snr;
+    let mask = thresholdHysteresis(parts[0].snr, lo, hi);
+    for (let j = 1; j < parts.length; j++) {
+      snr = maxImage(snr, parts[j].snr);
+      mask = orMask(mask, thresholdHysteresis(parts[j].snr, lo, hi));
+    }
+    mask = close3x3(open3x3(mask));
+    const comps = labelComponents(mask, snr);
+    const blobs = comps.blobs.filter((b) => b.area >= minArea);
+    let active = 0;
+    for (const b of blobs) active += b.area;
+    for (let i = 0; i < snr.data.length; i++) {
+      if (snr.data[i] > heat.data[i]) heat.data[i] = snr.data[i];
+      if (mask.data[i]) activity[i] = 1;
+    }
+    results[k].sigma = parts[0].sigma;
+    results[k].blobs = blobs;
+    results[k].activeFraction = active / Math.max(1, analysed);
+    blobsPerFrame.push(blobs);
+  }
+  const tracks = linkTracks(blobsPerFrame, width, height);
+  const feats = tracks.map((t) => trackFeatures(t, n, width, height, SNR_SCALE));
+  const context: EventContext = {
+    frameCount: n,
+    activeFraction: results.reduce((a, r) => a + r.activeFraction, 0) / n,
+    blobsPerFrame: results.reduce((a, r) => a + r.blobs.length, 0) / n,
+    maxShift: Math.max(...results.map((r) => (r.compensated ? Math.hypot(r.shift.dx, r.shift.dy) : 0))),
+    maxGainStep: Math.max(...results.map((r) => Math.max(...r.gain.map((g) => Math.abs(g - 1))))),
+    noReference: n === 1 && !input.background,
+  };
+  return { width, height, frames: results, tracks, trackFeatures: feats, context, heat, activity };
+}

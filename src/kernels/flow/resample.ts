@@ -1,0 +1,106 @@
+/**
+ * Float image helpers for the flow pyramid: separable Gaussian blur with mirrored borders
+ * (reflect-101, "dcb|abcd|cba") and bilinear resize with pixel-centre alignment
+ * (src = (dst + 0.5) * scale - 0.5, clamped at the edges). These are the conventions of the
+ * reference implementation the flow is checked against (OpenCV's GaussianBlur and resize).
+ */
+import type { FloatImage } from '../frame.js';
+
+/** Gaussian taps for an odd size; sigma <= 0 takes the fixed 3-tap [1/4, 1/2, 1/4] kernel. */
+export function gaussianTaps(size: number, sigma: number): Float64Array {
+  if (sigma <= 0 && size === 3) return Float64Array.of(0.25, 0.5, 0.25);
+  const s = sigma > 0 ? sigma : 0.3 * ((size - 1) * 0.5 - 1) + 0.8;
+  const taps = new Float64Array(size);
+  const c = (size - 1) / 2;
+  let sum = 0;
+  for (let i = 0; i < size; i++) {
+    taps[i] = Math.exp(-((i - c) ** 2) / (2 * s * s));
+    sum += taps[i];
+  }
+  for (let i = 0; i < size; i++) taps[i] /= sum;
+  return taps;
+}
+
+function reflect101(i: number, n: number): number {
+  if (n === 1) return 0;
+  while (i < 0 || i >= n) i = i < 0 ? -i : 2 * n - 2 - i;
+  return i;
+}
+
+export function gaussianBlur(src: FloatImage, size: number, sigma: number): FloatImage {
+  const taps = gaussianTaps(size, sigma);
+  const r = (size - 1) / 2;
+  const { width: w, height: h, channels: ch } = src;
+  const tmp = new Float32Array(src.data.length);
+  const out = new Float32Array(src.data.length);
+  for (let y = 0; y < h; y++) {
+    for (let x = 0; x < w; x++) {
+      for (let c = 0; c < ch; c++) {
+        let acc = 0;
+        for (let k = -r; k <= r; k++) acc += taps[k + r] * src.data[(y * w + reflect101(x + k, w)) * ch + c];
+        tmp[(y * w + x) * ch + c] = acc;
+      }
+    }
+  }
+  for (let y = 0; y < h; y++) {
+    for (let x = 0; x < w; x++) {
+      for (let c = 0; c < ch; c++) {
+        let acc = 0;
+        for (let k = -r; k <= r; k++) acc += taps[k + r] * tmp[(reflect101(y + k, h) * w + x) * ch + c];
+        out[(y * w + x) * ch + c] = acc;
+      }
+    }
+  }
+  return { width: w, height: h, channels: ch, data: out };
+}
+
+export function resizeBilinear(src: FloatImage, width: number, height: number): FloatImage {
+  const { width: sw, height: sh, channels: ch } = src;
+  const out = new Float32Array(width * height * ch);
+  const sx = sw / width;
+  const sy = sh / height;
+  const xi = new Int32Array(width);
+  const xf = new Float64Array(width);
+  for (let x = 0; x < width; x++) {
+    let f = (x + 0.5) * sx - 0.5;
+    let i = Math.floor(f);
+    f -= i;
+    if (i < 0) {
+      i = 0;
+      f = 0;
+    }
+    if (i >= sw - 1) {
+      i = sw - 1;
+      f = 0;
+    }
+    xi[x] = i;
+    xf[x] = f;
+  }
+  for (let y = 0; y < height; y++) {
+    let fy = (y + 0.5) * sy - 0.5;
+    let iy = Math.floor(fy);
+    fy -= iy;
+    if (iy < 0) {
+      iy = 0;
+      fy = 0;
+    }
+    if (iy >= sh - 1) {
+      iy = sh - 1;
+      fy = 0;
+    }
+    const iy1 = Math.min(sh - 1, iy + 1);
+    for (let x = 0; x < width; x++) {
+      const i0 = xi[x];
+      const i1 = Math.min(sw - 1, i0 + 1);
+      const fx = xf[x];
+      for (let c = 0; c < ch; c++) {
+        const a = src.data[(iy * sw + i0) * ch + c];
+        const b = src.data[(iy * sw + i1) * ch + c];
+        const d = src.data[(iy1 * sw + i0) * ch + c];
+        const e = src.data[(iy1 * sw + i1) * ch + c];
+        out[(y * width + x) * ch + c] = (a + fx * (b - a)) * (1 - fy) + (d + fx * (e - d)) * fy;
+      }
+    }
+  }
+  return { width, height, channels: ch, data: out };
+}

@@ -1,0 +1,44 @@
+/**
+ * Engine parameters. Defaults are chosen to keep animals: seeds at 4 sigma (a 1-in-30,000
+ * chance per pixel under Gaussian noise, so a 320x240 frame gets about 2-3 noise seeds, which
+ * the opening and the minimum area remove), growth at 2 sigma so faint parts of a subject
+ * attach to it. The minimum blob is 0.02% of the frame: a 12x12 px animal at 640 px wide.
+ */
+import { checkNumber } from '../shared/validate.js';
+
+export interface EngineParams {
+  /** Hysteresis seed and growth thresholds, in noise sigmas. */
+  seedSigmas: number;
+  growSigmas: number;
+  /** Noise floor (grey levels): below this, uint8 quantisation and JPEG blocking dominate. */
+  minNoise: number;
+  /** Smallest blob kept, as a fraction of the frame area. */
+  minBlobFraction: number;
+  /** Shifts with less phase-correlation confidence than this are not compensated. */
+  alignMinConfidence: number;
+  /** Video: memory of the running background, seconds. */
+  backgroundSeconds: number;
+}
+
+export const DEFAULT_PARAMS: EngineParams = {
+  seedSigmas: 4,
+  growSigmas: 2,
+  minNoise: 1,
+  minBlobFraction: 0.0002,
+  alignMinConfidence: 0.15,
+  backgroundSeconds: 8,
+};
+
+/** SNR images store round(SNR_SCALE * change / sigma) in uint8: 0.1 sigma steps to 25.5 sigma. */
+export const SNR_SCALE = 10;
+
+export function checkParams(p: Partial<EngineParams>): EngineParams {
+  const q = { ...DEFAULT_PARAMS, ...p };
+  checkNumber('seedSigmas', q.seedSigmas, 0.5, 25);
+  checkNumber('growSigmas', q.growSigmas, 0.5, q.seedSigmas);
+  checkNumber('minNoise', q.minNoise, 0, 64);
+  checkNumber('minBlobFraction', q.minBlobFraction, 0, 0.5);
+  checkNumber('alignMinConfidence', q.alignMinConfidence, 0, 1);
+  checkNumber('backgroundSeconds', q.backgroundSeconds, 0.1, 3600);
+  return q;
+}

@@ -1,0 +1,95 @@
+/**
+ * Motion evidence: a logistic model over per-track features plus event context, fitted by
+ * tools/fit-weights.ts on the generator's fitting seeds (weights and metrics in
+ * models/motion-weights.json). The event's score is its best track's; an event with no track
+ * scores 0. Verdict thresholds come from the same fit, set to keep animals (see the model file).
+ */
+import { checkNumber } from '../shared/validate.js';
+import type { EventAnalysis, EventContext } from './analyse-event.js';
+import type { TrackFeatures } from './tracks.js';
+
+export const Verdict = { likelyBlank: 'likely-blank', unsure: 'unsure', motion: 'motion' } as const;
+export type VerdictName = (typeof Verdict)[keyof typeof Verdict];
+
+export const FEATURE_NAMES = [
+  'logMeanSnr',
+  'logPeakSnr',
+  'persistence',
+  'straightness',
+  'logTravel',
+  'sizeVariation',
+  'logAreaFraction',
+  'fill',
+  'logActiveFraction',
+  'logBlobsPerFrame',
+  'trackShare',
+] as const;
+
+export interface MotionModel {
+  schema: 'movesift.motion-model/1';
+  features: readonly string[];
+  mean: number[];
+  std: number[];
+  weights: number[];
+  bias: number;
+  thresholds: { blank: number; motion: number };
+}
+
+export function featureVector(t: TrackFeatures, ctx: EventContext, trackShare: number): number[] {
+  return [
+    Math.log1p(t.meanSnr),
+    Math.log1p(t.peakSnr),
+    t.persistence,
+    t.straightness,
+    Math.log1p(t.travel),
+    Math.min(3, t.sizeVariation),
+    Math.log10(t.areaFraction + 1e-5),
+    t.fill,
+    Math.log10(ctx.activeFraction + 1e-5),
+    Math.log1p(ctx.blobsPerFrame),
+    trackShare,
+  ];
+}
+
+/** Feature vectors of every track of an analysed event (rows in track order). */
+export function eventFeatureRows(a: EventAnalysis): number[][] {
+  const total = a.tracks.reduce((s, t) => s + t.points.reduce((q, p) => q + p.blob.area, 0), 0);
+  return a.tracks.map((t, i) => {
+    const area = t.points.reduce((q, p) => q + p.blob.area, 0);
+    return featureVector(a.trackFeatures[i], a.context, total > 0 ? area / total : 0);
+  });
+}
+
+export function trackScore(model: MotionModel, row: number[]): number {
+  let z = model.bias;
+  for (let i = 0; i < row.length; i++) z += model.weights[i] * ((row[i] - model.mean[i]) / model.std[i]);
+  return 1 / (1 + Math.exp(-z));
+}
+
+export interface EventScore {
+  score: number;
+  verdict: VerdictName;
+  /** Index of the best track, -1 when there is none. */
+  bestTrack: number;
+  trackScores: number[];
+}
+
+export function verdictFor(model: MotionModel, score: number): VerdictName {
+  checkNumber('score', score, 0, 1);
+  if (score < model.thresholds.blank) return Verdict.likelyBlank;
+  if (score >= model.thresholds.motion) return Verdict.motion;
+  return Verdict.unsure;
+}
+
+export function scoreEvent(model: MotionModel, a: EventAnalysis): EventScore {
+  const rows = eventFeatureRows(a);
+  const trackScores = rows.map((r) => trackScore(model, r));
+  let best = -1;
+  trackScores.forEach((s, i) => {
+    if (best < 0 || s > trackScores[best]) best = i;
+  });
+  const score = best < 0 ? 0 : trackScores[best];
+  // Without a reference the pixels cannot show motion: never call such an image blank.
+  const verdict = a.context.noReference ? Verdict.unsure : verdictFor(model, score);
+  return { score, verdict, bestTrack: best, trackScores };
+}

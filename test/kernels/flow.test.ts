@@ -1,0 +1,100 @@
+/**
+ * Farnebäck flow against OpenCV's calcOpticalFlowFarneback (npm @techstark/opencv-js, same
+ * parameters) on the real pairs of ../shared/fixtures/flow-pairs (Middlebury RubberWhale and
+ * OpenCV's basketball sample), by warp error, and against analytic sub-pixel shifts.
+ */
+import { beforeAll, describe, expect, it } from 'vitest';
+import { farnebackFlow, DEFAULT_FLOW } from '../../src/kernels/flow/farneback.js';
+import { makeGrey, type FloatImage, type GreyFrame } from '../../src/kernels/frame.js';
+import { toLuma } from '../../src/kernels/luma.js';
+import { ErrorCode } from '../../src/shared/errors.js';
+import { makeRng } from '../../tools/scenes/random.js';
+import { valueNoise } from '../../tools/scenes/texture.js';
+import { readRgb } from '../helpers/fixtures.js';
+import { loadOpenCv, type Cv } from '../helpers/opencv.js';
+
+let cv: Cv;
+beforeAll(async () => {
+  cv = await loadOpenCv();
+});
+
+function cvFlow(a: GreyFrame, b: GreyFrame): Float32Array {
+  const ma = new cv.Mat(a.height, a.width, cv.CV_8UC1);
+  ma.data.set(a.data);
+  const mb = new cv.Mat(b.height, b.width, cv.CV_8UC1);
+  mb.data.set(b.data);
+  const flow = new cv.Mat();
+  const p = DEFAULT_FLOW;
+  cv.calcOpticalFlowFarneback(ma, mb, flow, p.pyrScale, p.levels, p.winSize, p.iterations, p.polyN, p.polySigma, 0);
+  const out = Float32Array.from(flow.data32F);
+  [ma, mb, flow].forEach((m) => m.delete());
+  return out;
+}
+
+/** Mean |prev(x) - next(x + flow(x))| with bilinear sampling; flow undefined = no motion. */
+function warpError(a: GreyFrame, b: GreyFrame, flow?: Float32Array): number {
+  let err = 0;
+  const { width: w, height: h } = a;
+  for (let y = 0; y < h; y++) {
+    for (let x = 0; x < w; x++) {
+      const i = y * w + x;
+      const sx = Math.min(w - 1.001, Math.max(0, x + (flow ? flow[i * 2] : 0)));
+      const sy = Math.min(h - 1.001, Math.max(0, y + (flow ? flow[i * 2 + 1] : 0)));
+      const x0 = Math.floor(sx), y0 = Math.floor(sy), fx = sx - x0, fy = sy - y0;
+      const v = (b.data[y0 * w + x0] * (1 - fx) + b.data[y0 * w + x0 + 1] * fx) * (1 - fy) + (b.data[(y0 + 1) * w + x0] * (1 - fx) + b.data[(y0 + 1) * w + x0 + 1] * fx) * fy;
+      err += Math.abs(a.data[i] - v);
+    }
+  }
+  return err / (w * h);
+}
+
+describe('Farnebäck flow matches OpenCV on real pairs', () => {
+  it.each([
+    ['flow-pairs/rubberwhale1.png', 'flow-pairs/rubberwhale2.png'],
+    ['flow-pairs/basketball1.png', 'flow-pairs/basketball2.png'],
+  ])('%s', async (fa, fb) => {
+    const a = toLuma(await readRgb(fa));
+    const b = toLuma(await readRgb(fb));
+    const ours = farnebackFlow(a, b).data;
+    const ref = cvFlow(a, b);
+    let epe = 0;
+    for (let i = 0; i < ours.length; i += 2) epe += Math.hypot(ours[i] - ref[i], ours[i + 1] - ref[i + 1]);
+    epe /= ours.length / 2;
+    const none = warpError(a, b), oursErr = warpError(a, b, ours), refErr = warpError(a, b, ref);
+    console.log(`${fa}: mean endpoint difference to OpenCV ${epe.toFixed(4)} px; warp error none ${none.toFixed(3)}, ours ${oursErr.toFixed(3)}, OpenCV ${refErr.toFixed(3)}`);
+    expect(epe).toBeLessThanOrEqual(0.3);
+    // Our flow must remove at least 95% as much photometric error as OpenCV's does.
+    expect(none - oursErr).toBeGreaterThanOrEqual(0.95 * (none - refErr));
+  });
+});
+
+describe('Farnebäck flow on analytic shifts', () => {
+  it.each([
+    [1, 0.35, -0.6],
+    [2, 1.7, 0.4],
+    [3, -2.25, 1.5],
+  ])('seed %i, shift (%f, %f): mean endpoint error <= 0.1 px', (seed, dx, dy) => {
+    const field = valueNoise(makeRng(seed), 12, 4);
+    const w = 160, h = 120;
+    const a = makeGrey(w, h), b = makeGrey(w, h);
+    for (let y = 0; y < h; y++) {
+      for (let x = 0; x < w; x++) {
+        a.data[y * w + x] = Math.round(255 * field(x, y));
+        b.data[y * w + x] = Math.round(255 * field(x - dx, y - dy));
+      }
+    }
+    const flow: FloatImage = farnebackFlow(a, b);
+    let e = 0, n = 0;
+    // Inner region: the edge rows are damped by design and have no match for the shifted content.
+    for (let y = 16; y < h - 16; y++) for (let x = 16; x < w - 16; x++) {
+      const i = (y * w + x) * 2;
+      e += Math.hypot(flow.data[i] - dx, flow.data[i + 1] - dy);
+      n++;
+    }
+    expect(e / n).toBeLessThanOrEqual(0.1);
+  });
+  it('rejects an even window and mismatched frames with stable codes', () => {
+    expect(() => farnebackFlow(makeGrey(64, 64), makeGrey(64, 64), { ...DEFAULT_FLOW, winSize: 14 })).toThrowError(/winSize: wanted odd integer/);
+    expect(() => farnebackFlow(makeGrey(64, 64), makeGrey(64, 48))).toThrowError(expect.objectContaining({ code: ErrorCode.sizeMismatch }));
+  });
+});

@@ -1,0 +1,61 @@
+/**
+ * Runs the motion engine on generated scenes and labels its tracks from the scene's ground
+ * truth: a track is the subject's when its blobs overlap the subject mask by a quarter of their
+ * area in at least one frame. Shared by the weight fit and the behaviour tests.
+ */
+import { analyseEvent, type EventAnalysis } from '../../src/kernels/analyse-event.js';
+import { detectDataStripInFrames, ignoreMask } from '../../src/kernels/data-strip.js';
+import { eventFeatureRows, scoreEvent, type MotionModel, type EventScore } from '../../src/kernels/score.js';
+import { temporalMedian } from '../../src/kernels/temporal-median.js';
+import type { CategoryName } from './categories.js';
+import { renderScene, type Scene } from './render.js';
+
+export interface LabelledEvent {
+  seed: number;
+  category: CategoryName;
+  animal: boolean;
+  frames: number;
+  rows: number[][];
+  labels: number[];
+  analysis: EventAnalysis;
+}
+
+export function analyseScene(scene: Scene, withDeploymentBackground = true): LabelledEvent {
+  const strip = detectDataStripInFrames(scene.frames);
+  const mask = strip.top || strip.bottom ? ignoreMask(scene.width, scene.height, strip) : undefined;
+  const background = scene.neighbours.length && (withDeploymentBackground || scene.frames.length === 1) ? temporalMedian(scene.neighbours) : undefined;
+  const analysis = analyseEvent({ frames: scene.frames, background, mask });
+  const rows = eventFeatureRows(analysis);
+  const labels = analysis.tracks.map((t) =>
+    t.points.some((p) => {
+      const m = scene.subjectMasks[p.frame];
+      let hit = 0;
+      const b = p.blob;
+      for (let y = b.y; y < b.y + b.height; y++) for (let x = b.x; x < b.x + b.width; x++) hit += m[y * scene.width + x];
+      return hit >= 0.25 * b.area;
+    })
+      ? 1
+      : 0,
+  );
+  return { seed: scene.seed, category: scene.category, animal: scene.animal, frames: scene.frames.length, rows, labels, analysis };
+}
+
+/** Scene list for a seed range: every category, bursts and (one in four) single triggers. */
+export function sceneRequests(firstSeed: number, perCategory: number, categories: readonly CategoryName[]): Array<{ seed: number; category: CategoryName; frames?: number }> {
+  const out: Array<{ seed: number; category: CategoryName; frames?: number }> = [];
+  categories.forEach((category, ci) => {
+    for (let i = 0; i < perCategory; i++) {
+      const seed = firstSeed + ci * 1000 + i;
+      out.push({ seed, category, frames: i % 4 === 3 ? 1 : undefined });
+    }
+  });
+  return out;
+}
+
+export function evaluate(model: MotionModel, ev: LabelledEvent): EventScore {
+  return scoreEvent(model, ev.analysis);
+}
+
+export function runScenes(reqs: ReturnType<typeof sceneRequests>): LabelledEvent[] {
+  return reqs.map((r) => analyseScene(renderScene(r)));
+}
