@@ -19,6 +19,8 @@ import { temporalMedian } from './temporal-median.js';
 import { thresholdHysteresis } from './threshold.js';
 import { linkTracks, trackFeatures, type Track, type TrackFeatures } from './tracks.js';
 import { translateBilinear } from './translate.js';
+import { farnebackFlow } from './flow/farneback.js';
+import { blobFlow, trackFlow, type BlobFlow, type TrackFlow } from './flow/flow-features.js';
 
 export interface EventInput {
   frames: readonly RgbFrame[];
@@ -31,6 +33,8 @@ export interface EventInput {
   /** Restless-pixel weights of the deployment, 0..1 per pixel. */
   restless?: Float32Array;
   params?: Partial<EngineParams>;
+  /** Compute dense flow between consecutive frames and per-track flow features (slower). */
+  flow?: boolean;
 }
 
 export interface FrameAnalysis {
@@ -62,6 +66,8 @@ export interface EventAnalysis {
   frames: FrameAnalysis[];
   tracks: Track[];
   trackFeatures: TrackFeatures[];
+  /** Per track, when flow was requested. */
+  trackFlows?: TrackFlow[];
   context: EventContext;
   /** Max SNR over frames (SNR_SCALE per sigma), for previews and the restless map. */
   heat: GreyFrame;
@@ -151,6 +157,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
   const hi = params.seedSigmas * SNR_SCALE;
   const lo = params.growSigmas * SNR_SCALE;
   const blobsPerFrame: Blob[][] = [];
+  const labelsPerFrame: Int32Array[] = [];
   for (let k = 0; k < n; k++) {
     const parts: Array<{ snr: GreyFrame; sigma: number }> = [];
     if (background) parts.push(toSnr(maxChannelChange(work[k], background), params.minNoise, valid, input.restless));
@@ -159,6 +166,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     else if (n === 2) parts.push(toSnr(maxChannelChange(work[0], work[1]), params.minNoise, valid, input.restless));
     if (parts.length === 0) {
       blobsPerFrame.push([]);
+      labelsPerFrame.push(new Int32Array(width * height));
       continue;
     }
     let snr = parts[0].snr;
@@ -180,9 +188,26 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     results[k].blobs = blobs;
     results[k].activeFraction = active / Math.max(1, analysed);
     blobsPerFrame.push(blobs);
+    labelsPerFrame.push(comps.labels);
   }
   const tracks = linkTracks(blobsPerFrame, width, height);
   const feats = tracks.map((t) => trackFeatures(t, n, width, height, SNR_SCALE));
+  let trackFlows: TrackFlow[] | undefined;
+  if (input.flow && n >= 2) {
+    const lumas = work.map(toLuma);
+    // Motion of frame k's pixels since frame k - 1, on frame k's grid (where its blobs are):
+    // the flow from k back to k - 1, negated. Frame 0 takes its flow towards frame 1.
+    const flows = lumas.map((l, k) => {
+      if (k === 0) return farnebackFlow(l, lumas[1]);
+      const back = farnebackFlow(l, lumas[k - 1]);
+      for (let i = 0; i < back.data.length; i++) back.data[i] = -back.data[i];
+      return back;
+    });
+    trackFlows = tracks.map((t) => {
+      const per: BlobFlow[] = t.points.map((p) => blobFlow(flows[p.frame], labelsPerFrame[p.frame], p.blob.label, p.blob));
+      return trackFlow(t, per);
+    });
+  }
   const context: EventContext = {
     frameCount: n,
     activeFraction: results.reduce((a, r) => a + r.activeFraction, 0) / n,
@@ -191,5 +216,5 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     maxGainStep: Math.max(...results.map((r) => Math.max(...r.gain.map((g) => Math.abs(g - 1))))),
     noReference: n === 1 && !input.background,
   };
-  return { width, height, frames: results, tracks, trackFeatures: feats, context, heat, activity };
+  return { width, height, frames: results, tracks, trackFeatures: feats, trackFlows, context, heat, activity };
 }

@@ -5,7 +5,8 @@
  *
  * Common practice, no published method: a strip is a run of rows from the edge whose pixels
  * mostly share one flat, unsaturated value (the bar) with text on it, ending in a sharp step to
- * the picture. A row is bar-like when at least `flatShare` of its pixels lie within `tol` of the
+ * the picture. A row is bar-like when at least `flatShare` of its pixels lie within `tol` (4 grey
+ * levels: a printed bar is digitally flat, a picture row carries texture and sensor noise) of the
  * edge row's bar value and carry little colour. Dark scenes can make picture rows bar-like too,
  * so a run taller than `maxShare` of the height is taken as picture, not strip.
  */
@@ -68,7 +69,7 @@ function runFromEdge(f: RgbFrame, fromTop: boolean, o: Required<StripOptions>): 
 /** Finds the strip on a frame: rows to ignore at the top and bottom (0 when none). */
 export function detectDataStrip(frame: RgbFrame, options: StripOptions = {}): DataStrip {
   checkFrame('frame', frame, 3);
-  const o = { flatShare: 0.6, tol: 10, maxShare: 0.12, ...options };
+  const o = { flatShare: 0.6, tol: 4, maxShare: 0.12, ...options };
   checkNumber('flatShare', o.flatShare, 0.05, 1);
   checkNumber('tol', o.tol, 0, 128);
   checkNumber('maxShare', o.maxShare, 0.005, 0.5);

@@ -21,6 +21,7 @@ export interface Shift {
 // 128 px windows: enough texture for 0.1 px at analysis sizes, 4x cheaper than 256.
 const MAX_WINDOW = 128;
 const EPS_FACTOR = 1;
+const GRID = 21;
 
 function largestPow2(n: number): number {
   let p = 2;
@@ -101,13 +102,13 @@ export function estimateShift(reference: GreyFrame | FloatImage, current: GreyFr
   const x0 = (reference.width - w) >> 1;
   const y0 = (reference.height - h) >> 1;
   const fa = fft2d(windowed(reference, w, h, x0, y0), w, h, false);
-  const first = correlate(fa, fft2d(windowed(current, w, h, x0, y0), w, h, false), w, h, false);
-  // A window fixed in place on both frames biases the peak towards zero shift. Second pass:
-  // window the current frame where the content went (the integer shift), so only the
-  // fractional part is left to estimate and its bias becomes negligible.
+  const first = correlate(fa, fft2d(windowed(current, w, h, x0, y0), w, h, false), w, h, true);
+  // A window fixed in place on both frames biases the peak towards zero shift. When the shift
+  // is a pixel or more, a second pass windows the current frame where the content went (the
+  // integer shift), so only the fractional part is left to estimate.
   const ix = Math.max(-x0, Math.min(reference.width - w - x0, Math.round(first.dx)));
   const iy = Math.max(-y0, Math.min(reference.height - h - y0, Math.round(first.dy)));
-  if (ix === 0 && iy === 0) return correlate(fa, fft2d(windowed(current, w, h, x0, y0), w, h, false), w, h, true);
+  if (ix === 0 && iy === 0) return first;
   const second = correlate(fa, fft2d(windowed(current, w, h, x0 + ix, y0 + iy), w, h, false), w, h, true);
   return { dx: second.dx + ix, dy: second.dy + iy, confidence: second.confidence };
 }
@@ -150,17 +151,18 @@ function correlate(fa: Float64Array, fb: Float64Array, w: number, h: number, ref
   const px = bx < w / 2 ? bx : bx - w;
   const py = by < h / 2 ? by : by - h;
   if (!refine) return { dx: px, dy: py, confidence: best / peakNorm };
-  const steps = Array.from({ length: 31 }, (_, i) => (i - 15) / 10);
+  // The integer peak is within half a pixel of the true one: +-1 px at 0.1 px steps.
+  const steps = Array.from({ length: GRID }, (_, i) => (i - (GRID >> 1)) / 10);
   const grid = upsampledPeak(spec, w, h, steps.map((s) => px + s), steps.map((s) => py + s));
   // Peak height relative to a perfect match (all weight at one point) is the confidence.
   for (let i = 0; i < grid.length; i++) grid[i] /= peakNorm;
   let gi = 0;
   for (let i = 1; i < grid.length; i++) if (grid[i] > grid[gi]) gi = i;
-  const gy = Math.floor(gi / 31);
-  const gx = gi % 31;
-  const at = (yy: number, xx: number): number => grid[Math.min(30, Math.max(0, yy)) * 31 + Math.min(30, Math.max(0, xx))];
-  const fx = gx > 0 && gx < 30 ? parabola(at(gy, gx - 1), at(gy, gx), at(gy, gx + 1)) : 0;
-  const fy = gy > 0 && gy < 30 ? parabola(at(gy - 1, gx), at(gy, gx), at(gy + 1, gx)) : 0;
+  const gy = Math.floor(gi / GRID);
+  const gx = gi % GRID;
+  const at = (yy: number, xx: number): number => grid[yy * GRID + xx];
+  const fx = gx > 0 && gx < GRID - 1 ? parabola(at(gy, gx - 1), at(gy, gx), at(gy, gx + 1)) : 0;
+  const fy = gy > 0 && gy < GRID - 1 ? parabola(at(gy - 1, gx), at(gy, gx), at(gy + 1, gx)) : 0;
   return {
     dx: px + steps[gx] + fx / 10,
     dy: py + steps[gy] + fy / 10,

@@ -20,60 +20,81 @@ const GAIN_LIMITS = [0.25, 4] as const;
 function fitChannel(ref: Uint8Array, cur: Uint8Array, ch: number, c: number, valid?: Uint8Array): [number, number] {
   const nPix = ref.length / ch;
   const step = Math.max(1, Math.floor(nPix / MAX_SAMPLES));
-  const xs: number[] = [];
-  const ys: number[] = [];
+  const xs = new Float64Array(Math.ceil(nPix / step));
+  const ys = new Float64Array(xs.length);
+  let n = 0;
   for (let p = 0; p < nPix; p += step) {
     if (valid && !valid[p]) continue;
     const x = cur[p * ch + c];
     const y = ref[p * ch + c];
     if (x === 0 || x === 255 || y === 0 || y === 255) continue;
-    xs.push(x);
-    ys.push(y);
+    xs[n] = x;
+    ys[n++] = y;
   }
-  if (xs.length < 16) return [1, 0];
+  if (n < 16) return [1, 0];
   // Start from a Theil-Sen estimate (median of pairwise slopes, breakdown point 29%), so the
   // trimming below starts from a fit the subject has not pulled. Pairs are a fixed stride apart:
   // deterministic, and far enough to span the brightness range.
-  const slopes: number[] = [];
-  const stride = Math.max(1, Math.floor(xs.length / 3) + 1);
-  for (let i = 0; i < xs.length; i += Math.max(1, Math.floor(xs.length / 4000))) {
-    const j = (i + stride) % xs.length;
+  const stride = Math.floor(n / 3) + 1;
+  const slopes = new Float64Array(Math.min(n, 4000));
+  let m = 0;
+  for (let i = 0; i < n && m < slopes.length; i += Math.max(1, Math.floor(n / 4000))) {
+    const j = (i + stride) % n;
     const ddx = xs[j] - xs[i];
-    if (Math.abs(ddx) >= 8) slopes.push((ys[j] - ys[i]) / ddx);
+    if (Math.abs(ddx) >= 8) slopes[m++] = (ys[j] - ys[i]) / ddx;
   }
-  let gain = slopes.length ? median(slopes) : 1;
+  let gain = m ? median(slopes.subarray(0, m)) : 1;
   gain = Math.min(GAIN_LIMITS[1], Math.max(GAIN_LIMITS[0], gain));
-  let offset = median(xs.map((x, i) => ys[i] - gain * x));
-  let keep = residualKeep(xs, ys, gain, offset);
+  const res = new Float64Array(n);
+  for (let i = 0; i < n; i++) res[i] = ys[i] - gain * xs[i];
+  let offset = median(res);
+  const keep = new Uint8Array(n);
+  residualKeep(xs, ys, n, gain, offset, res, keep);
   for (let iter = 0; iter < 3; iter++) {
-    let n = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
-    for (let i = 0; i < xs.length; i++) {
+    let k = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
+    for (let i = 0; i < n; i++) {
       if (!keep[i]) continue;
-      n++;
+      k++;
       sx += xs[i];
       sy += ys[i];
       sxx += xs[i] * xs[i];
       sxy += xs[i] * ys[i];
     }
-    if (n < 16) break;
-    const vx = sxx - (sx * sx) / n;
-    gain = vx > 1e-6 ? (sxy - (sx * sy) / n) / vx : 1;
+    if (k < 16) break;
+    const vx = sxx - (sx * sx) / k;
+    gain = vx > 1e-6 ? (sxy - (sx * sy) / k) / vx : 1;
     gain = Math.min(GAIN_LIMITS[1], Math.max(GAIN_LIMITS[0], gain));
-    offset = (sy - gain * sx) / n;
-    keep = residualKeep(xs, ys, gain, offset);
+    offset = (sy - gain * sx) / k;
+    residualKeep(xs, ys, n, gain, offset, res, keep);
   }
   return [gain, offset];
 }
 
-function median(values: number[]): number {
+/** Median by sorting a copy (inputs here are a few thousand values). */
+function median(values: Float64Array): number {
   const s = Float64Array.from(values).sort();
   return s[s.length >> 1];
 }
 
-function residualKeep(xs: number[], ys: number[], gain: number, offset: number): Uint8Array {
-  const res = xs.map((x, i) => Math.abs(ys[i] - (gain * x + offset)));
-  const sigma = Math.max(1, 1.4826 * median(res));
-  return Uint8Array.from(res, (r) => (r <= 3 * sigma ? 1 : 0));
+/** Marks samples within 3 robust sigmas of the line; the sigma's median comes from a 1/8-level histogram. */
+function residualKeep(xs: Float64Array, ys: Float64Array, n: number, gain: number, offset: number, res: Float64Array, keep: Uint8Array): void {
+  const BINS = 2048;
+  const hist = new Uint32Array(BINS);
+  for (let i = 0; i < n; i++) {
+    res[i] = Math.abs(ys[i] - (gain * xs[i] + offset));
+    hist[Math.min(BINS - 1, Math.floor(res[i] * 8))]++;
+  }
+  let acc = 0;
+  let med = 0;
+  for (let b = 0; b < BINS; b++) {
+    acc += hist[b];
+    if (acc >= n / 2) {
+      med = (b + 0.5) / 8;
+      break;
+    }
+  }
+  const limit = 3 * Math.max(1, 1.4826 * med);
+  for (let i = 0; i < n; i++) keep[i] = res[i] <= limit ? 1 : 0;
 }
 
 export function fitGainOffset(reference: Frame, current: Frame, valid?: Uint8Array): GainOffset {

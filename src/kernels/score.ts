@@ -5,6 +5,7 @@
  * scores 0. Verdict thresholds come from the same fit, set to keep animals (see the model file).
  */
 import { checkNumber } from '../shared/validate.js';
+import { invalidArgument } from '../shared/errors.js';
 import type { EventAnalysis, EventContext } from './analyse-event.js';
 import type { TrackFeatures } from './tracks.js';
 
@@ -27,12 +28,17 @@ export const FEATURE_NAMES = [
 
 export interface MotionModel {
   schema: 'movesift.motion-model/1';
+  /** Raw feature names; the model works on their quadratic expansion (see expandFeatures). */
   features: readonly string[];
   mean: number[];
   std: number[];
   weights: number[];
   bias: number;
   thresholds: { blank: number; motion: number };
+  /** Range of each raw feature over the fitting tracks: inputs are clipped to it, so a scene
+   *  unlike any fitted one (a very large, very clear animal) cannot send the quadratic terms
+   *  into extrapolation. */
+  range: { lo: number[]; hi: number[] };
 }
 
 export function featureVector(t: TrackFeatures, ctx: EventContext, trackShare: number): number[] {
@@ -60,9 +66,25 @@ export function eventFeatureRows(a: EventAnalysis): number[][] {
   });
 }
 
-export function trackScore(model: MotionModel, row: number[]): number {
+/**
+ * Quadratic expansion: the raw features, then every product f_i f_j (i <= j). A linear model
+ * cannot say "persistent AND not travelling is sway, unless the blob is compact"; products let
+ * a logistic model draw such curved boundaries while staying a convex, reproducible fit.
+ */
+export function expandFeatures(row: readonly number[]): number[] {
+  const out = [...row];
+  for (let i = 0; i < row.length; i++) for (let j = i; j < row.length; j++) out.push(row[i] * row[j]);
+  return out;
+}
+
+export function trackScore(model: MotionModel, raw: number[]): number {
+  const row = raw.map((v, i) => Math.min(model.range.hi[i], Math.max(model.range.lo[i], v)));
+  const x = expandFeatures(row);
+  if (model.weights.length !== x.length || model.mean.length !== x.length) {
+    throw invalidArgument('model.weights', `${x.length} weights (quadratic expansion of ${row.length} features)`, model.weights.length);
+  }
   let z = model.bias;
-  for (let i = 0; i < row.length; i++) z += model.weights[i] * ((row[i] - model.mean[i]) / model.std[i]);
+  for (let i = 0; i < x.length; i++) z += model.weights[i] * ((x[i] - model.mean[i]) / model.std[i]);
   return 1 / (1 + Math.exp(-z));
 }
 

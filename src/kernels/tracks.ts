@@ -5,8 +5,9 @@
  * Linking is greedy nearest-neighbour with a gate: a blob joins the track that ended in the
  * previous frame (or one frame before, to bridge a missed detection) whose last blob overlaps
  * its box or whose centroid is within `gate` (a fraction of the frame diagonal, or two blob
- * sizes). Candidates are taken best first by distance; each track and blob is used once per
- * frame. Simple on purpose: bursts hold few frames and few subjects.
+ * sizes), and whose area is within a factor of four of its own (a body changes shape, but
+ * not that much between frames; rain streaks and specks do not chain into one "animal").
+ * Candidates are taken best first by distance; each track and blob is used once per frame. Simple on purpose: bursts hold few frames and few subjects.
  */
 import { checkNumber } from '../shared/validate.js';
 import type { Blob } from './components.js';
@@ -56,7 +57,8 @@ export function linkTracks(blobsPerFrame: readonly Blob[][], width: number, heig
       blobs.forEach((b, i) => {
         const d = Math.hypot(b.cx - last.cx, b.cy - last.cy);
         const size = 2 * Math.sqrt(Math.max(b.area, last.area));
-        if (boxesTouch(b, last) || d <= Math.max(gate * diag, size)) pairs.push({ t, b: i, d });
+        const ratio = b.area > last.area ? b.area / last.area : last.area / b.area;
+        if (ratio <= 4 && (boxesTouch(b, last) || d <= Math.max(gate * diag, size))) pairs.push({ t, b: i, d });
       });
     }
     pairs.sort((p, q) => p.d - q.d);

@@ -8,6 +8,7 @@ import { Category, isAnimal, isUnderwater, type CategoryName } from './categorie
 import { makeRng, type Rng } from './random.js';
 import { makeSubject, subjectAt, subjectRadius, type Subject } from './subject.js';
 import { valueNoise, type Field } from './texture.js';
+import { paintStrip, type StripStyle } from './data-strip.js';
 import { makeWorld, sampleWorld, type Light, type World } from './world.js';
 
 export interface Scene {
@@ -170,7 +171,7 @@ function renderFrame(r: Renderer, t: number, showSubject: boolean, frameRng: Rng
   const gw = w + 2 * margin;
   const ox = e.shake * frameRng.normal() * 0.7 + e.surge * Math.sin(t * 1.3);
   const oy = e.shake * frameRng.normal() * 0.5 + 0.4 * e.surge * Math.cos(t * 1.1);
-  const tn = r.duration > 0 ? Math.min(1, Math.max(0, t / r.duration)) : 0;
+  const tn = r.duration > 0 ? Math.min(1, Math.max(0, subjectT / r.duration)) : 0;
   const gain = (e.gainFrom + (e.gainTo - e.gainFrom) * tn) * (e.lampStep && tn >= 0.5 ? 1 + e.lampStep : 1);
   const lampFalloff = e.lampStep && tn >= 0.5 ? 0.5 + e.lampStep : 0.5;
   const streaks: Streak[] = Array.from({ length: e.rain }, () => ({
@@ -252,6 +253,10 @@ export interface SceneRequest {
   frames?: number;
   width?: number;
   height?: number;
+  /** Another trigger of the same camera (same world and effects, a later moment). */
+  event?: number;
+  /** Paint a camera data strip (time and frame counter) that changes every frame. */
+  strip?: StripStyle;
 }
 
 export function renderScene(req: SceneRequest): Scene {
@@ -269,19 +274,28 @@ export function renderScene(req: SceneRequest): Scene {
   const interval = rng.range(0.3, 1.2);
   const duration = (n - 1) * interval;
   const r = makeRenderer(rng, req.category, light, width, height, Math.max(duration, 1));
-  const times = Array.from({ length: n }, (_, i) => i * interval);
+  const t0 = (req.event ?? 0) * 53.7;
+  const times = Array.from({ length: n }, (_, i) => t0 + i * interval);
   const frames: RgbFrame[] = [];
   const subjectMasks: Uint8Array[] = [];
-  const frameRng = makeRng(req.seed * 31 + 5);
+  const frameRng = makeRng(req.seed * 31 + 5 + (req.event ?? 0) * 7777);
   for (const t of times) {
-    const { frame, mask } = renderFrame(r, t, true, frameRng);
+    const { frame, mask } = renderFrame(r, t, true, frameRng, t - t0);
     frames.push(frame);
     subjectMasks.push(mask);
   }
   // Neighbouring empty triggers of the same camera, minutes apart: same world, other moments.
   const neighbours: RgbFrame[] = [];
   for (let k = 0; k < 4; k++) neighbours.push(renderFrame(r, 10 + k * 37.3, false, frameRng).frame);
-  const animal = isAnimal(req.category) && subjectMasks.some((m) => m.some((v) => v));
+  if (req.strip) {
+    const clock = rng.int(0, 86399);
+    frames.forEach((f, i) => paintStrip(f, req.strip!, `${clock + Math.floor(times[i])}${i + 1}${n}`));
+    neighbours.forEach((f, i) => paintStrip(f, req.strip!, `${clock - 600 * (i + 1)}1${n}`));
+  }
+  // An animal is present when a person could see it: at least 0.05% of the frame (16 px at
+  // the least) in some frame. A sliver of a tail at the edge is not a visible animal.
+  const visible = Math.max(16, 0.0005 * width * height);
+  const animal = isAnimal(req.category) && subjectMasks.some((m) => m.reduce((a, v) => a + v, 0) >= visible);
   return { seed: req.seed, category: req.category, light, animal, width, height, times, frames, subjectMasks, neighbours };
 }
 

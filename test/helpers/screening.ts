@@ -1,0 +1,36 @@
+/**
+ * Behaviour on the generator's validation seeds (never seen by the weight fit): verdicts per
+ * category, printed as a table.
+ */
+import { MOTION_MODEL } from '../../src/kernels/model.js';
+import { scoreEvent, Verdict } from '../../src/kernels/score.js';
+import { isAnimal, type CategoryName } from '../../tools/scenes/categories.js';
+import { runScenes, sceneRequests } from '../../tools/scenes/evaluate.js';
+import { VALIDATION_SEEDS } from '../../tools/scenes/seeds.js';
+
+export interface Tally {
+  category: CategoryName;
+  animal: boolean;
+  events: number;
+  'likely-blank': number;
+  unsure: number;
+  motion: number;
+}
+
+export function screenCategories(categories: readonly CategoryName[]): Tally[] {
+  const events = runScenes(sceneRequests(VALIDATION_SEEDS.first, VALIDATION_SEEDS.perCategory, categories));
+  const rows = new Map<CategoryName, Tally>();
+  for (const e of events) {
+    // A generated animal that never became visible (off the edge) is not an animal event.
+    if (isAnimal(e.category) && !e.animal) continue;
+    const t = rows.get(e.category) ?? { category: e.category, animal: e.animal, events: 0, 'likely-blank': 0, unsure: 0, motion: 0 };
+    t.events++;
+    t[scoreEvent(MOTION_MODEL, e.analysis).verdict]++;
+    rows.set(e.category, t);
+  }
+  const table = [...rows.values()];
+  console.table(table);
+  return table;
+}
+
+export const notBlank = (t: Tally): number => t.events - t[Verdict.likelyBlank];

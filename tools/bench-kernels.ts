@@ -1,0 +1,157 @@
+/**
+ * Kernel benchmark: our per-frame chain and our flow side by side with the same operations in
+ * OpenCV.js (npm @techstark/opencv-js, WASM), on the same frames, in one run, interleaved so a
+ * noisy shared machine hits both alike. Prints median times and ratios (ours / OpenCV).
+ * Run: npm run bench:kernels
+ */
+import { createRequire } from 'node:module';
+import { absDiff } from '../src/kernels/abs-diff.js';
+import { maxOfChannels } from '../src/kernels/change-image.js';
+import { labelComponents } from '../src/kernels/components.js';
+import { farnebackFlow, DEFAULT_FLOW } from '../src/kernels/flow/farneback.js';
+import type { RgbFrame } from '../src/kernels/frame.js';
+import { toLuma } from '../src/kernels/luma.js';
+import { close3x3, open3x3 } from '../src/kernels/morphology.js';
+import { estimateShift } from '../src/kernels/phase-correlate.js';
+import { applyGainOffset, fitGainOffset } from '../src/kernels/photometric.js';
+import { thresholdBinary } from '../src/kernels/threshold.js';
+import { Category } from './scenes/categories.js';
+import { renderScene } from './scenes/render.js';
+
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+type Cv = any;
+async function loadCv(): Promise<Cv> {
+  const cv = createRequire(import.meta.url)('@techstark/opencv-js');
+  if (!cv.Mat) await new Promise<void>((r) => (cv.onRuntimeInitialized = () => r()));
+  // The module is a thenable resolving to itself; returning it from an async function would
+  // never settle, so drop its then() first.
+  delete cv.then;
+  return cv;
+}
+
+function median(v: number[]): number {
+  const s = [...v].sort((a, b) => a - b);
+  return s[s.length >> 1];
+}
+
+function oursChain(a: RgbFrame, b: RgbFrame): number {
+  const go = fitGainOffset(a, b);
+  const nb = applyGainOffset(b, go);
+  estimateShift(toLuma(a), toLuma(nb));
+  const change = maxOfChannels(absDiff(a, nb));
+  const mask = close3x3(open3x3(thresholdBinary(change, 20)));
+  return labelComponents(mask, change).count;
+}
+
+function cvChain(cv: Cv, a: Cv, b: Cv, w: number, h: number): number {
+  // Normalise: mean/std per channel give a gain and offset, applied with convertScaleAbs.
+  const ma = new cv.Mat(), sa = new cv.Mat(), mb = new cv.Mat(), sb = new cv.Mat();
+  cv.meanStdDev(a, ma, sa);
+  cv.meanStdDev(b, mb, sb);
+  const gain = sa.data64F[0] / Math.max(1e-6, sb.data64F[0]);
+  const nb = new cv.Mat();
+  cv.convertScaleAbs(b, nb, gain, ma.data64F[0] - gain * mb.data64F[0]);
+  // Align: phase correlation from cv.dft on a 128x128 Hann-windowed float crop.
+  const ga = new cv.Mat(), gb = new cv.Mat();
+  cv.cvtColor(a, ga, cv.COLOR_RGB2GRAY);
+  cv.cvtColor(nb, gb, cv.COLOR_RGB2GRAY);
+  const rect = new cv.Rect((w - 128) >> 1, (h - 128) >> 1, 128, 128);
+  const fa = new cv.Mat(), fb = new cv.Mat();
+  const win = hann(cv);
+  ga.roi(rect).convertTo(fa, cv.CV_32F);
+  gb.roi(rect).convertTo(fb, cv.CV_32F);
+  cv.multiply(fa, win, fa);
+  cv.multiply(fb, win, fb);
+  const Fa = new cv.Mat(), Fb = new cv.Mat(), P = new cv.Mat(), C = new cv.Mat();
+  cv.dft(fa, Fa, cv.DFT_COMPLEX_OUTPUT);
+  cv.dft(fb, Fb, cv.DFT_COMPLEX_OUTPUT);
+  // This OpenCV.js build has no mulSpectrums: the normalised cross-power product is done in JS.
+  const A = Fa.data32F, B = Fb.data32F;
+  P.create(128, 128, cv.CV_32FC2);
+  const Q = P.data32F;
+  for (let i = 0; i < Q.length; i += 2) {
+    const re = B[i] * A[i] + B[i + 1] * A[i + 1];
+    const im = B[i + 1] * A[i] - B[i] * A[i + 1];
+    const m = Math.hypot(re, im) + 1e-9;
+    Q[i] = re / m;
+    Q[i + 1] = im / m;
+  }
+  cv.dft(P, C, cv.DFT_INVERSE | cv.DFT_REAL_OUTPUT | cv.DFT_SCALE);
+  cv.minMaxLoc(C);
+  // Difference, threshold, morphology, components.
+  const d3 = new cv.Mat(), d = new cv.Mat(), m = new cv.Mat(), k = cv.Mat.ones(3, 3, cv.CV_8U);
+  cv.absdiff(a, nb, d3);
+  cv.cvtColor(d3, d, cv.COLOR_RGB2GRAY);
+  cv.threshold(d, m, 20, 255, cv.THRESH_BINARY);
+  cv.morphologyEx(m, m, cv.MORPH_OPEN, k);
+  cv.morphologyEx(m, m, cv.MORPH_CLOSE, k);
+  const labels = new cv.Mat(), stats = new cv.Mat(), cents = new cv.Mat();
+  const n = cv.connectedComponentsWithStats(m, labels, stats, cents, 8, cv.CV_32S);
+  [ma, sa, mb, sb, nb, ga, gb, fa, fb, win, Fa, Fb, P, C, d3, d, m, k, labels, stats, cents].forEach((x) => x.delete());
+  return n - 1;
+}
+
+/** A 128x128 Hann window (this OpenCV.js build has no createHanningWindow). */
+function hann(cv: Cv): Cv {
+  const v = new Float32Array(128 * 128);
+  for (let y = 0; y < 128; y++) for (let x = 0; x < 128; x++) v[y * 128 + x] = (0.5 - 0.5 * Math.cos((2 * Math.PI * (x + 0.5)) / 128)) * (0.5 - 0.5 * Math.cos((2 * Math.PI * (y + 0.5)) / 128));
+  return cv.matFromArray(128, 128, cv.CV_32F, v);
+}
+
+function toMat(cv: Cv, f: RgbFrame): Cv {
+  const m = new cv.Mat(f.height, f.width, cv.CV_8UC3);
+  m.data.set(f.data);
+  return m;
+}
+
+async function main(): Promise<void> {
+  const cv = await loadCv();
+  const reps = Number(process.env.BENCH_REPS ?? 15);
+  console.log(`OpenCV.js ${cv.getBuildInformation().match(/General configuration for OpenCV ([^\s=]+)/)?.[1] ?? ''}; ${reps} rounds each, interleaved; medians in ms`);
+  const rows: Array<Record<string, string>> = [];
+  for (const [w, h] of [[320, 180], [640, 360]]) {
+    const s = renderScene({ seed: 77, category: Category.animalCrossing, width: w, height: h, frames: 2 });
+    const [a, b] = s.frames;
+    const ca = toMat(cv, a), cb = toMat(cv, b);
+    const la = toLuma(a), lb = toLuma(b);
+    const ga = new cv.Mat(h, w, cv.CV_8UC1), gb = new cv.Mat(h, w, cv.CV_8UC1);
+    ga.data.set(la.data);
+    gb.data.set(lb.data);
+    const t = { ours: [] as number[], cv: [] as number[], oursFlow: [] as number[], cvFlow: [] as number[] };
+    oursChain(a, b);
+    cvChain(cv, ca, cb, w, h);
+    for (let r = 0; r < reps; r++) {
+      let t0 = performance.now();
+      oursChain(a, b);
+      t.ours.push(performance.now() - t0);
+      t0 = performance.now();
+      cvChain(cv, ca, cb, w, h);
+      t.cv.push(performance.now() - t0);
+      if (r < Math.max(3, reps / 3)) {
+        t0 = performance.now();
+        farnebackFlow(la, lb);
+        t.oursFlow.push(performance.now() - t0);
+        const flow = new cv.Mat();
+        const p = DEFAULT_FLOW;
+        t0 = performance.now();
+        cv.calcOpticalFlowFarneback(ga, gb, flow, p.pyrScale, p.levels, p.winSize, p.iterations, p.polyN, p.polySigma, 0);
+        t.cvFlow.push(performance.now() - t0);
+        flow.delete();
+      }
+    }
+    const m = Object.fromEntries(Object.entries(t).map(([k, v]) => [k, median(v)])) as Record<keyof typeof t, number>;
+    rows.push({
+      size: `${w}x${h}`,
+      'chain ours': m.ours.toFixed(2),
+      'chain OpenCV': m.cv.toFixed(2),
+      'chain ratio': (m.ours / m.cv).toFixed(2),
+      'flow ours': m.oursFlow.toFixed(1),
+      'flow OpenCV': m.cvFlow.toFixed(1),
+      'flow ratio': (m.oursFlow / m.cvFlow).toFixed(2),
+    });
+    [ca, cb, ga, gb].forEach((x) => x.delete());
+  }
+  console.table(rows);
+}
+
+await main();
