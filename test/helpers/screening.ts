@@ -34,3 +34,15 @@ export function screenCategories(categories: readonly CategoryName[]): Tally[] {
 }
 
 export const notBlank = (t: Tally): number => t.events - t[Verdict.likelyBlank];
+
+/** Animal recall (events not likely-blank) and the share of false triggers called likely-blank. */
+export function summarise(table: Tally[]): { recall: number; blankShare: number } {
+  const animals = table.filter((t) => isAnimal(t.category));
+  const falses = table.filter((t) => !isAnimal(t.category));
+  const nA = animals.reduce((s, t) => s + t.events, 0);
+  const kept = animals.reduce((s, t) => s + notBlank(t), 0);
+  const nF = falses.reduce((s, t) => s + t.events, 0);
+  const blank = falses.reduce((s, t) => s + t['likely-blank'], 0);
+  console.log(`animal recall ${kept}/${nA} = ${(kept / nA).toFixed(3)}; false triggers likely-blank ${blank}/${nF} = ${(blank / nF).toFixed(3)}`);
+  return { recall: kept / nA, blankShare: blank / nF };
+}
