@@ -47,12 +47,11 @@ function updateMatrices(R0: Float32Array, R1: Float32Array, flow: Float32Array, 
         const a00 = (1 - fx) * (1 - fy), a01 = fx * (1 - fy), a10 = (1 - fx) * fy, a11 = fx * fy;
         const p = (y1i * w + x1) * 5;
         const q = p + w * 5;
-        const at = (k: number): number => a00 * R1[p + k] + a01 * R1[p + 5 + k] + a10 * R1[q + k] + a11 * R1[q + 5 + k];
-        r2 = at(0);
-        r3 = at(1);
-        r4 = (R0[r0 + 2] + at(2)) * 0.5;
-        r5 = (R0[r0 + 3] + at(3)) * 0.5;
-        r6 = (R0[r0 + 4] + at(4)) * 0.25;
+        r2 = a00 * R1[p] + a01 * R1[p + 5] + a10 * R1[q] + a11 * R1[q + 5];
+        r3 = a00 * R1[p + 1] + a01 * R1[p + 6] + a10 * R1[q + 1] + a11 * R1[q + 6];
+        r4 = (R0[r0 + 2] + a00 * R1[p + 2] + a01 * R1[p + 7] + a10 * R1[q + 2] + a11 * R1[q + 7]) * 0.5;
+        r5 = (R0[r0 + 3] + a00 * R1[p + 3] + a01 * R1[p + 8] + a10 * R1[q + 3] + a11 * R1[q + 8]) * 0.5;
+        r6 = (R0[r0 + 4] + a00 * R1[p + 4] + a01 * R1[p + 9] + a10 * R1[q + 4] + a11 * R1[q + 9]) * 0.25;
       } else {
         r2 = r3 = 0;
         r4 = R0[r0 + 2];
@@ -88,7 +87,7 @@ function updateFlowBox(R0: Float32Array, R1: Float32Array, flow: Float32Array, M
   const scale = 1 / (block * block);
   const pad = (m + 1) * 5;
   const buf = new Float64Array((w + m * 2 + 2) * 5);
-  const vs = (i: number): number => buf[pad + i];
+
   for (let x = 0; x < w * 5; x++) buf[pad + x] = M[x] * (m + 2);
   for (let y = 1; y < m; y++) {
     const r = Math.min(y, h - 1) * w * 5;
@@ -102,20 +101,20 @@ function updateFlowBox(R0: Float32Array, R1: Float32Array, flow: Float32Array, M
       buf[pad - 1 - x] = buf[pad + 4 - x];
       buf[pad + w * 5 + x] = buf[pad + w * 5 + x - 5];
     }
-    let g11 = vs(0) * (m + 2), g12 = vs(1) * (m + 2), g22 = vs(2) * (m + 2), h1 = vs(3) * (m + 2), h2 = vs(4) * (m + 2);
+    let g11 = buf[pad + 0] * (m + 2), g12 = buf[pad + 1] * (m + 2), g22 = buf[pad + 2] * (m + 2), h1 = buf[pad + 3] * (m + 2), h2 = buf[pad + 4] * (m + 2);
     for (let x = 1; x < m; x++) {
-      g11 += vs(x * 5);
-      g12 += vs(x * 5 + 1);
-      g22 += vs(x * 5 + 2);
-      h1 += vs(x * 5 + 3);
-      h2 += vs(x * 5 + 4);
+      g11 += buf[pad + x * 5];
+      g12 += buf[pad + x * 5 + 1];
+      g22 += buf[pad + x * 5 + 2];
+      h1 += buf[pad + x * 5 + 3];
+      h2 += buf[pad + x * 5 + 4];
     }
     for (let x = 0; x < w; x++) {
-      g11 += vs((x + m) * 5) - vs((x - m) * 5 - 5);
-      g12 += vs((x + m) * 5 + 1) - vs((x - m) * 5 - 4);
-      g22 += vs((x + m) * 5 + 2) - vs((x - m) * 5 - 3);
-      h1 += vs((x + m) * 5 + 3) - vs((x - m) * 5 - 2);
-      h2 += vs((x + m) * 5 + 4) - vs((x - m) * 5 - 1);
+      g11 += buf[pad + (x + m) * 5] - buf[pad + (x - m) * 5 - 5];
+      g12 += buf[pad + (x + m) * 5 + 1] - buf[pad + (x - m) * 5 - 4];
+      g22 += buf[pad + (x + m) * 5 + 2] - buf[pad + (x - m) * 5 - 3];
+      h1 += buf[pad + (x + m) * 5 + 3] - buf[pad + (x - m) * 5 - 2];
+      h2 += buf[pad + (x + m) * 5 + 4] - buf[pad + (x - m) * 5 - 1];
       const a = g11 * scale, b = g12 * scale, c = g22 * scale, p = h1 * scale, q = h2 * scale;
       const idet = 1 / (a * c - b * b + 1e-3);
       flow[(y * w + x) * 2] = (a * q - b * p) * idet;

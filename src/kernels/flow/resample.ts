@@ -31,24 +31,31 @@ export function gaussianBlur(src: FloatImage, size: number, sigma: number): Floa
   const taps = gaussianTaps(size, sigma);
   const r = (size - 1) / 2;
   const { width: w, height: h, channels: ch } = src;
+  // Border indices precomputed once per axis: the inner loops then only multiply and add.
+  const xs = new Int32Array((w + 2 * r));
+  for (let i = -r; i < w + r; i++) xs[i + r] = reflect101(i, w);
+  const ys = new Int32Array((h + 2 * r));
+  for (let i = -r; i < h + r; i++) ys[i + r] = reflect101(i, h);
   const tmp = new Float32Array(src.data.length);
   const out = new Float32Array(src.data.length);
+  const s = src.data;
   for (let y = 0; y < h; y++) {
+    const row = y * w;
     for (let x = 0; x < w; x++) {
       for (let c = 0; c < ch; c++) {
         let acc = 0;
-        for (let k = -r; k <= r; k++) acc += taps[k + r] * src.data[(y * w + reflect101(x + k, w)) * ch + c];
-        tmp[(y * w + x) * ch + c] = acc;
+        for (let k = 0; k < size; k++) acc += taps[k] * s[(row + xs[x + k]) * ch + c];
+        tmp[(row + x) * ch + c] = acc;
       }
     }
   }
+  const stride = w * ch;
   for (let y = 0; y < h; y++) {
-    for (let x = 0; x < w; x++) {
-      for (let c = 0; c < ch; c++) {
-        let acc = 0;
-        for (let k = -r; k <= r; k++) acc += taps[k + r] * tmp[(reflect101(y + k, h) * w + x) * ch + c];
-        out[(y * w + x) * ch + c] = acc;
-      }
+    const o = y * stride;
+    for (let k = 0; k < size; k++) {
+      const t = taps[k];
+      const src0 = ys[y + k] * stride;
+      for (let i = 0; i < stride; i++) out[o + i] += t * tmp[src0 + i];
     }
   }
   return { width: w, height: h, channels: ch, data: out };
