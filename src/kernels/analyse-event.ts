@@ -93,7 +93,7 @@ function medianAbsLumaDiff(a: GreyFrame, b: GreyFrame, valid?: Uint8Array): numb
   let acc = 0;
   for (let v = 0; v < 256; v++) {
     acc += hist[v];
-    if (acc >= n / 2) return v + (acc - n / 2) / Math.max(1, hist[v]) * -1 + 0.5;
+    if (acc >= n / 2) return v + 0.5 - (acc - n / 2) / Math.max(1, hist[v]); // interpolated in the bin
   }
   return 255;
 }
