@@ -61,45 +61,37 @@ export function gaussianBlur(src: FloatImage, size: number, sigma: number): Floa
   return { width: w, height: h, channels: ch, data: out };
 }
 
+/** Source index and fraction of each output position along one axis, clamped at the edges. */
+function sourceTaps(outSize: number, inSize: number): { index: Int32Array; frac: Float64Array } {
+  const scale = inSize / outSize;
+  const index = new Int32Array(outSize);
+  const frac = new Float64Array(outSize);
+  for (let o = 0; o < outSize; o++) {
+    const f = (o + 0.5) * scale - 0.5;
+    const i = Math.floor(f);
+    if (i < 0) index[o] = 0;
+    else if (i >= inSize - 1) index[o] = inSize - 1;
+    else {
+      index[o] = i;
+      frac[o] = f - i;
+    }
+  }
+  return { index, frac };
+}
+
 export function resizeBilinear(src: FloatImage, width: number, height: number): FloatImage {
   const { width: sw, height: sh, channels: ch } = src;
   const out = new Float32Array(width * height * ch);
-  const sx = sw / width;
-  const sy = sh / height;
-  const xi = new Int32Array(width);
-  const xf = new Float64Array(width);
-  for (let x = 0; x < width; x++) {
-    let f = (x + 0.5) * sx - 0.5;
-    let i = Math.floor(f);
-    f -= i;
-    if (i < 0) {
-      i = 0;
-      f = 0;
-    }
-    if (i >= sw - 1) {
-      i = sw - 1;
-      f = 0;
-    }
-    xi[x] = i;
-    xf[x] = f;
-  }
+  const xt = sourceTaps(width, sw);
+  const yt = sourceTaps(height, sh);
   for (let y = 0; y < height; y++) {
-    let fy = (y + 0.5) * sy - 0.5;
-    let iy = Math.floor(fy);
-    fy -= iy;
-    if (iy < 0) {
-      iy = 0;
-      fy = 0;
-    }
-    if (iy >= sh - 1) {
-      iy = sh - 1;
-      fy = 0;
-    }
+    const iy = yt.index[y];
+    const fy = yt.frac[y];
     const iy1 = Math.min(sh - 1, iy + 1);
     for (let x = 0; x < width; x++) {
-      const i0 = xi[x];
+      const i0 = xt.index[x];
       const i1 = Math.min(sw - 1, i0 + 1);
-      const fx = xf[x];
+      const fx = xt.frac[x];
       for (let c = 0; c < ch; c++) {
         const a = src.data[(iy * sw + i0) * ch + c];
         const b = src.data[(iy * sw + i1) * ch + c];
