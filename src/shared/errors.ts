@@ -11,35 +11,36 @@ export const ErrorCode = {
 
 export type ErrorCodeValue = (typeof ErrorCode)[keyof typeof ErrorCode];
 
-export class MovesiftError extends Error {
-  readonly code: ErrorCodeValue;
-  constructor(code: ErrorCodeValue, message: string) {
+/** Each layer keeps its own catalogue of codes (media, ledger, pipeline, cli); all share this class. */
+export class MovesiftError<C extends string = string> extends Error {
+  readonly code: C;
+  constructor(code: C, message: string) {
     super(message);
     this.name = 'MovesiftError';
     this.code = code;
   }
 }
 
-export function invalidArgument(name: string, wanted: string, got: unknown): MovesiftError {
+export function invalidArgument(name: string, wanted: string, got: unknown): MovesiftError<ErrorCodeValue> {
   return new MovesiftError(ErrorCode.invalidArgument, `${name}: wanted ${wanted}, got ${describe(got)}`);
 }
 
-export function sizeMismatch(name: string, wanted: string, got: string): MovesiftError {
+export function sizeMismatch(name: string, wanted: string, got: string): MovesiftError<ErrorCodeValue> {
   return new MovesiftError(ErrorCode.sizeMismatch, `${name}: wanted ${wanted}, got ${got}`);
 }
 
-export function emptyFrame(name: string): MovesiftError {
+export function emptyFrame(name: string): MovesiftError<ErrorCodeValue> {
   return new MovesiftError(ErrorCode.emptyFrame, `${name}: frame has no pixels`);
 }
 
-export function notEnoughFrames(name: string, wanted: number, got: number): MovesiftError {
+export function notEnoughFrames(name: string, wanted: number, got: number): MovesiftError<ErrorCodeValue> {
   return new MovesiftError(
     ErrorCode.notEnoughFrames,
     `${name}: wanted at least ${wanted} frame(s), got ${got}`,
   );
 }
 
-function describe(value: unknown): string {
+export function describe(value: unknown): string {
   if (typeof value === 'number') return Number.isNaN(value) ? 'NaN' : String(value);
   if (typeof value === 'string') return JSON.stringify(value);
   if (value === null || value === undefined) return String(value);

@@ -123,8 +123,8 @@ interface Renderer {
   duration: number;
 }
 
-function makeRenderer(rng: Rng, category: CategoryName, light: Light, width: number, height: number, duration: number): Renderer {
-  const world = makeWorld(rng, width, height, light);
+function makeRenderer(rng: Rng, category: CategoryName, light: Light, width: number, height: number, duration: number, worldRng: Rng = rng): Renderer {
+  const world = makeWorld(worldRng, width, height, light);
   const effects = plan(rng, category, light);
   let subject: Subject | undefined;
   if (isAnimal(category)) {
@@ -257,13 +257,20 @@ export interface SceneRequest {
   event?: number;
   /** Paint a camera data strip (time and frame counter) that changes every frame. */
   strip?: StripStyle;
+  /** Seed of the place: triggers with the same world seed, size and light show the same scene
+   *  (one camera's deployment); absent, the place comes from `seed`. */
+  world?: number;
+  /** Light of a land scene (day or infrared night); underwater categories are always 'water'. */
+  light?: Light;
 }
 
 export function renderScene(req: SceneRequest): Scene {
   const rng = makeRng(req.seed * 7919 + 17);
   const light: Light = isUnderwater(req.category)
     ? 'water'
-    : req.category === Category.animalNight || req.category === Category.irLamp
+    : req.light && req.light !== 'water'
+      ? req.light
+      : req.category === Category.animalNight || req.category === Category.irLamp
       ? 'ir'
       : rng.chance(0.3)
         ? 'ir'
@@ -273,7 +280,7 @@ export function renderScene(req: SceneRequest): Scene {
   const n = req.frames ?? rng.int(3, 10);
   const interval = rng.range(0.3, 1.2);
   const duration = (n - 1) * interval;
-  const r = makeRenderer(rng, req.category, light, width, height, Math.max(duration, 1));
+  const r = makeRenderer(rng, req.category, light, width, height, Math.max(duration, 1), req.world !== undefined ? makeRng(req.world * 7919 + 23) : rng);
   const t0 = (req.event ?? 0) * 53.7;
   const times = Array.from({ length: n }, (_, i) => t0 + i * interval);
   const frames: RgbFrame[] = [];

@@ -1,0 +1,46 @@
+/**
+ * The `movesift` command line. Each command is its own file; this one only dispatches and
+ * turns errors into exit codes: usage and set-up problems exit 2 with the sentence that says
+ * what to do, other failures exit 1.
+ */
+import { ExitCode, USAGE_CODES } from './cli-errors.js';
+import { scanCommand } from './scan-command.js';
+import { reportCommand } from './report-command.js';
+
+const HELP = `Usage: movesift <command> [options]
+
+Screens camera-trap bursts and survey video by motion and keeps the result in a ledger.
+
+Commands:
+  scan <folder>... --ledger <file>     screen media into a ledger (resumable)
+  report <ledger> [--format json|csv]  print the screening result
+
+Run \`movesift <command> --help\` for a command's options.`;
+
+const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand };
+
+export async function main(argv: string[]): Promise<number> {
+  const [cmd, ...rest] = argv;
+  if (!cmd || cmd === '--help' || cmd === '-h' || cmd === 'help') {
+    console.log(HELP);
+    return cmd ? ExitCode.done : ExitCode.usage;
+  }
+  const run = COMMANDS[cmd];
+  if (!run) {
+    console.error(`movesift: unknown command ${JSON.stringify(cmd)}. Commands: ${Object.keys(COMMANDS).join(', ')}.`);
+    return ExitCode.usage;
+  }
+  try {
+    return await run(rest);
+  } catch (e) {
+    const code = (e as { code?: string }).code;
+    if (code && USAGE_CODES.has(code)) {
+      console.error(`movesift ${cmd}: ${(e as Error).message}`);
+      return ExitCode.usage;
+    }
+    console.error(`movesift ${cmd} failed${code ? ` (${code})` : ''}: ${(e as Error).message}`);
+    return ExitCode.failure;
+  }
+}
+
+main(process.argv.slice(2)).then((c) => process.exit(c));

@@ -1,0 +1,4 @@
+/** Migrations in order; the ledger's user_version is the number of the last one applied. */
+import { sql as m0001 } from './0001-initial.js';
+
+export const MIGRATIONS: readonly string[] = [m0001];

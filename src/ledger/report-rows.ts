@@ -1,0 +1,49 @@
+/** Read queries behind `movesift report`: analysed events with their files, windows and the
+ *  latest decision; and the recorded errors. */
+import type { Ledger } from './open-ledger.js';
+
+export interface ReportEventRow {
+  id: string;
+  kind: 'burst' | 'single' | 'clip';
+  deployment: string;
+  root: string;
+  start_time: string;
+  end_time: string;
+  verdict: 'likely-blank' | 'unsure' | 'motion';
+  score: number;
+  files: string;
+  windows: string | null;
+  decision: 'keep' | 'set-aside' | null;
+  decided_by: string | null;
+  decided_at: string | null;
+}
+
+export interface ReportErrorRow {
+  file: string;
+  root: string;
+  code: string;
+  message: string;
+}
+
+export function reportEvents(db: Ledger): ReportEventRow[] {
+  return db
+    .prepare<[], ReportEventRow>(
+      `SELECT e.id, e.kind, e.deployment_id AS deployment, r.path AS root, e.start_time, e.end_time, a.verdict, a.score,
+         (SELECT json_group_array(rel_path) FROM (SELECT m.rel_path FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id ORDER BY em.position)) AS files,
+         (SELECT json_group_array(json_object('start_s', start_s, 'end_s', end_s, 'score', score)) FROM (SELECT * FROM windows w WHERE w.analysis_id = a.id ORDER BY w.start_s)) AS windows,
+         d.decision, d.who AS decided_by, d.at AS decided_at
+       FROM events e
+       JOIN analyses a ON a.event_id = e.id
+       JOIN deployments dp ON dp.id = e.deployment_id
+       JOIN roots r ON r.id = dp.root_id
+       LEFT JOIN decisions d ON d.id = (SELECT max(id) FROM decisions WHERE event_id = e.id)
+       ORDER BY e.deployment_id, e.start_sort_ms, e.id`,
+    )
+    .all();
+}
+
+export function reportErrors(db: Ledger): ReportErrorRow[] {
+  return db
+    .prepare<[], ReportErrorRow>('SELECT s.rel_path AS file, r.path AS root, s.code, s.message FROM scan_errors s JOIN roots r ON r.id = s.root_id ORDER BY r.path, s.rel_path')
+    .all();
+}

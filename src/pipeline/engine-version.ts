@@ -1,0 +1,28 @@
+/**
+ * What makes two analyses comparable: the engine version (package version and a hash of the
+ * fitted model) and a hash of every setting that changes an analysis. A rerun skips an event
+ * only when both, and its inputs' fingerprints, are unchanged.
+ */
+import { createHash } from 'node:crypto';
+import { MOTION_MODEL } from '../kernels/model.js';
+import { DEFAULT_PARAMS } from '../kernels/params.js';
+import pkg from '../../package.json' with { type: 'json' };
+
+const sha = (s: string): string => createHash('sha256').update(s).digest('hex');
+
+export const MODEL_HASH = sha(JSON.stringify(MOTION_MODEL)).slice(0, 10);
+export const ENGINE_VERSION = `${pkg.version}+${MODEL_HASH}`;
+
+export interface AnalysisSettings {
+  analysisWidth: number;
+  videoFps: number;
+  flow: boolean;
+}
+
+export function paramHash(s: AnalysisSettings): string {
+  return sha(JSON.stringify({ engine: ENGINE_VERSION, params: DEFAULT_PARAMS, ...s })).slice(0, 16);
+}
+
+export function hashOf(parts: readonly string[]): string {
+  return sha(parts.join('\n')).slice(0, 16);
+}

@@ -1,0 +1,193 @@
+/**
+ * A scan: discover media under each root, take inventory, group events per deployment,
+ * reconcile them with the ledger, then analyse every event that has no current analysis,
+ * committing one transaction per event. Interrupted at any point, the next run picks up where
+ * this one stopped: what is committed is complete, what is not is redone.
+ */
+import path from 'node:path';
+import { findMedia, type FoundFile } from '../media/find-media.js';
+import { openLedger } from '../ledger/open-ledger.js';
+import { createScanStore, type EventPlan, type MediaRow } from '../ledger/scan-store.js';
+import { MAX_EVENT_FRAMES, groupEvents, type Group } from './group-events.js';
+import { ENGINE_VERSION, hashOf, paramHash, type AnalysisSettings } from './engine-version.js';
+import { runEventTask, type EventTask, type TaskOutcome } from './analyse-task.js';
+import { readDeploymentsTable, type DeploymentFacts } from './deployments-table.js';
+import { takeInventory } from './inventory.js';
+import { analysisSize } from '../kernels/downscale.js';
+import { createHash } from 'node:crypto';
+import type { ScanProgress } from './progress.js';
+
+export interface ScanOptions {
+  roots: string[];
+  ledger: string;
+  analysisWidth?: number;
+  videoFps?: number;
+  eventGapS?: number;
+  flow?: boolean;
+  deploymentsTable?: string;
+  /** Runs analyses; defaults to in-process. A worker pool passes its own. */
+  runner?: (task: EventTask) => Promise<TaskOutcome>;
+  concurrency?: number;
+  signal?: AbortSignal;
+  onProgress?: (p: ScanProgress) => void;
+}
+
+export interface ScanSummary {
+  scanId: number;
+  stopped: boolean;
+  files: number;
+  events: number;
+  analysed: number;
+  skipped: number;
+  errors: number;
+  verdicts: Record<string, number>;
+  seconds: number;
+}
+
+export const DEFAULTS = { analysisWidth: 384, videoFps: 4, eventGapS: 5 } as const;
+
+export function cacheDirOf(ledger: string): string {
+  return `${path.resolve(ledger)}.previews`;
+}
+
+const eventIdOf = (deployment: string, firstRel: string): string => 'e' + createHash('sha256').update(`${deployment}\0${firstRel}`).digest('hex').slice(0, 12);
+
+export async function scan(o: ScanOptions): Promise<ScanSummary> {
+  const t0 = Date.now();
+  const settings: AnalysisSettings = { analysisWidth: o.analysisWidth ?? DEFAULTS.analysisWidth, videoFps: o.videoFps ?? DEFAULTS.videoFps, flow: !!o.flow };
+  const gap = o.eventGapS ?? DEFAULTS.eventGapS;
+  const emit = o.onProgress ?? (() => {});
+  const table = o.deploymentsTable ? readDeploymentsTable(o.deploymentsTable) : new Map<string, DeploymentFacts>();
+  const roots = o.roots.map((r) => path.resolve(r));
+  emit({ type: 'phase', phase: 'discover' });
+  const found: FoundFile[][] = [];
+  for (const r of roots) found.push(await findMedia(r, [cacheDirOf(o.ledger)])); // a missing folder throws before the ledger is touched
+  const db = openLedger(o.ledger, { create: true });
+  const store = createScanStore(db);
+  const hash = paramHash(settings);
+  const scanId = store.startScan(roots, { ...settings, eventGapS: gap }, ENGINE_VERSION);
+  const runner = o.runner ?? runEventTask;
+  const cacheDir = cacheDirOf(o.ledger);
+  const summary: ScanSummary = { scanId, stopped: false, files: 0, events: 0, analysed: 0, skipped: 0, errors: 0, verdicts: { 'likely-blank': 0, unsure: 0, motion: 0 }, seconds: 0 };
+  try {
+    const totalFiles = found.reduce((a, f) => a + f.length, 0);
+    summary.files = totalFiles;
+    emit({ type: 'phase', phase: 'read', total: totalFiles });
+    const tasks: Array<{ task: EventTask; plan: EventPlan; rootId: number; rels: string[] }> = [];
+    let read = 0;
+    for (let ri = 0; ri < roots.length; ri++) {
+      const root = roots[ri];
+      const rootId = store.ensureRoot(root);
+      const deploymentOf = (f: FoundFile): string => table.get(f.folder)?.deploymentID ?? (f.folder || path.basename(root));
+      const folders = new Map<string, string>();
+      for (const f of found[ri]) folders.set(deploymentOf(f), f.folder);
+      store.upsertDeployments([...folders].map(([id, folder]) => {
+        const t = table.get(folder);
+        return { id, root_id: rootId, folder, location_name: t?.locationName ?? null, latitude: t?.latitude ?? null, longitude: t?.longitude ?? null, camera_id: t?.cameraID ?? null, camera_model: t?.cameraModel ?? null };
+      }));
+      const inv = await takeInventory(found[ri], rootId, deploymentOf, store, (f) => emit({ type: 'progress', phase: 'read', done: ++read, total: totalFiles, file: f.rel }), o.signal);
+      if (o.signal?.aborted) break;
+      db.transaction(() => {
+        for (const e of inv.errors) store.putError(rootId, e.rel, e.error, scanId);
+        const bad = new Set(inv.errors.map((e) => e.rel));
+        for (const r of inv.rows) if (!bad.has(r.rel_path) && store.error(rootId, r.rel_path)?.stage === 'read') store.clearError(rootId, r.rel_path);
+        store.pruneErrors(rootId, new Set(found[ri].map((f) => f.rel)));
+      })();
+      for (const e of inv.errors) emit({ type: 'error', file: e.rel, code: e.error.code, message: e.error.message });
+      const ids = store.replaceRootMedia(rootId, inv.rows);
+      const rows = inv.rows.map((r, i) => ({ ...r, id: ids[i] }));
+      const byDeployment = new Map<string, typeof rows>();
+      for (const r of rows) byDeployment.set(r.deployment_id, [...(byDeployment.get(r.deployment_id) ?? []), r]);
+      const plans: EventPlan[] = [];
+      for (const [dep, media] of byDeployment) {
+        const byId = new Map(media.map((m) => [m.id, m]));
+        const groups = groupEvents(media.map((m) => ({ mediaId: m.id, rel: m.rel_path, kind: m.kind, sortMs: m.capture_sort_ms })), gap, MAX_EVENT_FRAMES);
+        const imageGroups = groups.filter((g) => g.kind !== 'clip');
+        for (const g of groups) {
+          const items = g.items.map((it) => byId.get(it.mediaId)!);
+          const id = eventIdOf(dep, items[0].rel_path);
+          const plan: EventPlan = {
+            id, deployment_id: dep, kind: g.kind, start_time: items[0].capture_time, end_time: items[items.length - 1].capture_time,
+            start_sort_ms: items[0].capture_sort_ms, input_hash: hashOf(items.map((m) => `${m.rel_path}:${m.fingerprint}`)), media: items.map((m) => m.id),
+          };
+          plans.push(plan);
+          const first = items[0];
+          const size = analysisSize(first.width, first.height, Math.min(settings.analysisWidth, first.width));
+          const neighbours = g.kind !== 'single' ? [] : neighboursOf(imageGroups, g, byId).map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path }));
+          tasks.push({
+            plan, rootId, rels: items.map((m) => m.rel_path),
+            task: { eventId: id, kind: g.kind, files: items.map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path })), neighbours, width: size.width, height: size.height, videoFps: settings.videoFps, flow: settings.flow, cacheDir },
+          });
+        }
+      }
+      store.reconcileEvents([...new Set([...byDeployment.keys(), ...store.deploymentsOfRoot(rootId)])], plans);
+    }
+    summary.events = tasks.length;
+    const todo = tasks.filter((t) => !store.isAnalysed(t.plan.id, hash, t.plan.input_hash));
+    summary.skipped = tasks.length - todo.length;
+    emit({ type: 'phase', phase: 'analyse', total: todo.length, skipped: summary.skipped });
+    let done = 0;
+    const started = Date.now();
+    const concurrency = Math.max(1, o.concurrency ?? 1);
+    let next = 0;
+    const work = async (): Promise<void> => {
+      while (next < todo.length && !o.signal?.aborted) {
+        const t = todo[next++];
+        const out = await runner(t.task);
+        record(t, out);
+        done++;
+        const rate = done / Math.max(0.001, (Date.now() - started) / 1000);
+        emit({ type: 'progress', phase: 'analyse', done, total: todo.length, file: t.rels[0], rate, etaS: (todo.length - done) / rate });
+      }
+    };
+    const record = (t: (typeof tasks)[number], out: TaskOutcome): void => {
+      const errs = out.failures.map((f) => ({ rel: f.display, error: { fingerprint: null, stage: f.stage, code: f.code, message: f.message } as const }));
+      db.transaction(() => {
+        for (const rel of t.rels) store.clearError(t.rootId, rel);
+        for (const e of errs) {
+          const m = store.media(t.rootId, e.rel);
+          store.putError(t.rootId, e.rel, { ...e.error, fingerprint: m?.fingerprint ?? null }, scanId);
+        }
+        if (out.ok) {
+          store.saveAnalysis({
+            event_id: t.plan.id, scan_id: scanId, engine_version: ENGINE_VERSION, param_hash: hash, input_hash: t.plan.input_hash,
+            analysis_width: t.task.width, analysis_height: t.task.height, score: out.score, verdict: out.verdict,
+            features: JSON.stringify(out.features), detail: JSON.stringify(out.detail), windows: out.windows, previews: out.previews,
+          });
+        } else store.dropEvent(t.plan.id); // nothing of it could be read: its files carry the errors
+      })();
+      for (const e of errs) emit({ type: 'error', file: e.rel, code: e.error.code, message: e.error.message });
+      if (out.ok) {
+        summary.analysed++;
+      }
+    };
+    await Promise.all(Array.from({ length: concurrency }, work));
+    summary.stopped = !!o.signal?.aborted;
+    store.endScan(scanId, summary.stopped ? 'stopped' : 'done');
+    for (const c of store.verdictCounts()) summary.verdicts[c.verdict] = c.n;
+    summary.errors = store.errorCount();
+    summary.seconds = (Date.now() - t0) / 1000;
+    emit({ type: 'done', summary });
+    return summary;
+  } catch (e) {
+    store.endScan(scanId, 'failed');
+    throw e;
+  } finally {
+    db.close();
+  }
+}
+
+/** For a single image (a burst is its own reference): middle media of the nearest image events (two before, two after, more on one side when the
+ *  other runs out) with the same light mode: the deployment background for this event. */
+function neighboursOf(groups: Group[], g: Group, byId: Map<number, MediaRow & { id: number }>): Array<MediaRow & { id: number }> {
+  const mid = (x: Group) => byId.get(x.items[x.items.length >> 1].mediaId)!;
+  const light = mid(g).light;
+  const same = groups.filter((x) => x === g || mid(x).light === light);
+  const k = same.indexOf(g);
+  const out: Array<MediaRow & { id: number }> = [];
+  for (let d = 1; out.length < 4 && (k - d >= 0 || k + d < same.length); d++) {
+    if (k - d >= 0) out.push(mid(same[k - d]));
+    if (out.length < 4 && k + d < same.length) out.push(mid(same[k + d]));
+  }
+  return out;
+}

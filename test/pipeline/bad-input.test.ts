@@ -1,0 +1,134 @@
+/**
+ * Bad input never stops a scan: each bad file gets an error row with a stable code and a plain
+ * message, in the summary and in the report's `errors`, and every other file is screened.
+ * Bad usage exits 2 with a sentence. (Cases from the scan issue; files built here in a
+ * temporary folder from the project's own sample media.)
+ */
+import { copyFileSync, mkdirSync, readFileSync, symlinkSync, unlinkSync, writeFileSync, chmodSync } from 'node:fs';
+import path from 'node:path';
+import { spawnSync } from 'node:child_process';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { ROOT, runCli, tempDir } from '../helpers/cli.js';
+import { reportProblems } from '../helpers/report-shape.js';
+import { scan } from '../../src/pipeline/scan.js';
+import { runEventTask } from '../../src/pipeline/analyse-task.js';
+import { buildReport, type Report } from '../../src/pipeline/report.js';
+import { resolveBinaries } from '../../src/media/ffmpeg-binaries.js';
+
+const SAMPLE = path.join(ROOT, 'sample-media/ridge-trail');
+
+function buildFolder(): string {
+  const dir = tempDir('movesift-bad-');
+  const cam = path.join(dir, 'cam one');
+  mkdirSync(cam);
+  copyFileSync(path.join(SAMPLE, 'IMG_0001.JPG'), path.join(cam, `IMG 0001 "quoted" 'single'.JPG`));
+  copyFileSync(path.join(SAMPLE, 'IMG_0002.JPG'), path.join(cam, 'Élan ñandú 0002.JPG'));
+  copyFileSync(path.join(SAMPLE, 'IMG_0003.JPG'), path.join(cam, 'IMG_0003.jpg'));
+  writeFileSync(path.join(cam, 'zero.jpg'), '');
+  const jpeg = readFileSync(path.join(SAMPLE, 'IMG_0004.JPG'));
+  writeFileSync(path.join(cam, 'cut.jpg'), jpeg.subarray(0, Math.floor(jpeg.length * 0.4)));
+  writeFileSync(path.join(cam, 'letter.jpg'), 'Dear reader, this is not a photograph.\n');
+  writeFileSync(path.join(cam, 'notes.mp4'), 'not a video either\n');
+  writeFileSync(path.join(cam, '.hidden.jpg'), 'x');
+  writeFileSync(path.join(cam, '._IMG_0001.JPG'), 'x');
+  writeFileSync(path.join(cam, 'Thumbs.db'), 'x');
+  symlinkSync('..', path.join(cam, 'loop')); // a link back up must not make the walk loop
+  // An MP4 with its index (moov) at the end, cut in half: the broken-index case.
+  const { ffmpeg } = resolveBinaries();
+  const full = path.join(dir, 'full.mp4.tmp');
+  spawnSync(ffmpeg, ['-v', 'error', '-y', '-f', 'lavfi', '-i', 'testsrc=size=320x240:rate=10', '-t', '3', '-c:v', 'libx264', '-pix_fmt', 'yuv420p', '-f', 'mp4', full]);
+  const mp4 = readFileSync(full);
+  unlinkSync(full);
+  writeFileSync(path.join(cam, 'broken.mp4'), mp4.subarray(0, Math.floor(mp4.length / 2)));
+  return dir;
+}
+
+describe('bad input in a scanned folder', () => {
+  let report: Report;
+  let stdout: string;
+  let stderr: string;
+  let dir: string;
+  beforeAll(() => {
+    dir = buildFolder();
+    const ledger = path.join(dir, 'out', 'bad.ledger');
+    const r = runCli(['scan', dir, '--ledger', ledger]);
+    expect(r.code, r.stderr).toBe(0);
+    stdout = r.stdout;
+    stderr = r.stderr;
+    report = JSON.parse(runCli(['report', ledger]).stdout);
+  });
+
+  it('records each bad file with its code and still screens the good ones', () => {
+    expect(reportProblems(report)).toEqual([]);
+    const codes = Object.fromEntries(report.errors.map((e) => [e.file, e.code]));
+    expect(codes).toEqual({
+      'cam one/zero.jpg': 'E_MEDIA_EMPTY',
+      'cam one/cut.jpg': 'E_MEDIA_TRUNCATED',
+      'cam one/letter.jpg': 'E_MEDIA_NOT_MEDIA',
+      'cam one/notes.mp4': 'E_MEDIA_NOT_MEDIA',
+      'cam one/broken.mp4': 'E_VIDEO_PROBE_FAILED',
+    });
+    for (const e of report.errors) expect(e.message.startsWith(e.file)).toBe(true);
+    const files = report.events.flatMap((e) => e.files).sort();
+    expect(files).toEqual([`cam one/IMG 0001 "quoted" 'single'.JPG`, 'cam one/IMG_0003.jpg', 'cam one/Élan ñandú 0002.JPG'].sort());
+    expect(report.events).toHaveLength(1); // the three good frames are one burst by capture time
+  });
+
+  it('says so in the summary and prints each error', () => {
+    expect(stdout).toContain('5 file(s) could not be screened');
+    expect(stderr).toContain('E_MEDIA_TRUNCATED');
+  });
+
+  it('a rerun skips what is unchanged and keeps the same errors', () => {
+    const ledger = path.join(dir, 'out', 'bad.ledger');
+    const r = runCli(['scan', dir, '--ledger', ledger]);
+    expect(r.stdout).toContain('(0 screened now, 1 unchanged and skipped)');
+    expect(JSON.parse(runCli(['report', ledger]).stdout)).toEqual(report);
+  });
+
+  it('records a file that vanishes mid-scan and goes on', async () => {
+    const d = tempDir('movesift-vanish-');
+    for (const n of ['IMG_0001.JPG', 'IMG_0002.JPG', 'IMG_0003.JPG', 'IMG_0004.JPG', 'IMG_0005.JPG', 'IMG_0006.JPG']) copyFileSync(path.join(SAMPLE, n), path.join(d, n));
+    const ledger = path.join(d, 'v.ledger');
+    await scan({ roots: [d], ledger, runner: async (task) => { if (task.files.some((f) => f.display === 'IMG_0002.JPG')) unlinkSync(path.join(d, 'IMG_0002.JPG')); return runEventTask(task); } });
+    const r = buildReport(ledger);
+    expect(r.errors.map((e) => [e.file, e.code])).toEqual([['IMG_0002.JPG', 'E_MEDIA_VANISHED']]);
+    expect(r.events.length).toBe(2);
+    expect(r.events[0].files).toEqual(['IMG_0001.JPG', 'IMG_0002.JPG', 'IMG_0003.JPG']); // the event keeps its members; the lost frame is an error
+  });
+});
+
+describe('bad usage', () => {
+  it('exits 2 with a sentence for a folder that does not exist', () => {
+    const r = runCli(['scan', '/no/such/folder', '--ledger', path.join(tempDir(), 'x.ledger')]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/no such folder; check the path/);
+  });
+  it('exits 2 when the ledger cannot be written', () => {
+    const d = tempDir();
+    const ro = path.join(d, 'ro');
+    mkdirSync(ro);
+    writeFileSync(path.join(ro, 'blocker'), 'a file where a folder is needed');
+    const r = runCli(['scan', path.join(ROOT, 'sample-media/reef-station'), '--ledger', path.join(ro, 'blocker', 'x.ledger')]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/cannot open the ledger here.*choose a folder you can write to/);
+    chmodSync(ro, 0o755);
+  });
+  it('exits 2 for a file that is not a ledger, a missing flag and a bad number', () => {
+    const d = tempDir();
+    writeFileSync(path.join(d, 'notes.txt'), 'not sqlite');
+    expect(runCli(['report', path.join(d, 'notes.txt')]).code).toBe(2);
+    expect(runCli(['scan', 'sample-media']).stderr).toMatch(/--ledger <file> is required/);
+    const bad = runCli(['scan', 'sample-media', '--ledger', path.join(d, 'l'), '--analysis-width', 'wide']);
+    expect(bad.code).toBe(2);
+    expect(bad.stderr).toMatch(/--analysis-width: wanted integer 64-4096, got "wide"/);
+    expect(runCli(['frobnicate']).code).toBe(2);
+  });
+  it('prints help for every command', () => {
+    for (const c of ['scan', 'report']) {
+      const r = runCli([c, '--help']);
+      expect(r.code).toBe(0);
+      expect(r.stdout).toMatch(new RegExp(`^Usage: movesift ${c}`));
+    }
+  });
+});
