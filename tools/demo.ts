@@ -1,59 +1,40 @@
 /**
- * Demo: screens an invented scenario with the motion engine and prints what it would set aside.
- * Two camera deployments (one by day, one at night in infrared) of a dozen triggers each, with
- * animals and every kind of false trigger, plus one short underwater clip. All generated from
- * fixed seeds by tools/scenes; nothing here comes from real footage.
- * Until the scan command lands (issue 3) this runs the engine directly on the generated frames.
+ * `npm run demo`: scans the bundled sample media (an invented scenario from our own generator,
+ * see sample-media/ground-truth.json) into a temporary ledger with the real scan pipeline, then
+ * prints what the screener proposes next to the truth. Nothing is moved or deleted.
  */
-import { analyseEvent } from '../src/kernels/analyse-event.js';
-import { activityWindows } from '../src/kernels/activity-windows.js';
-import { createClipAnalyser } from '../src/kernels/clip-activity.js';
-import { detectDataStripInFrames, ignoreMask } from '../src/kernels/data-strip.js';
-import { MOTION_MODEL } from '../src/kernels/model.js';
-import { scoreEvent } from '../src/kernels/score.js';
-import { Category, type CategoryName } from './scenes/categories.js';
-import { renderClip, renderScene } from './scenes/render.js';
+import { mkdtempSync, readFileSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { scan } from '../src/pipeline/scan.js';
+import { buildReport } from '../src/pipeline/report.js';
+import { formatSummary } from '../src/cli/scan-command.js';
+import { progressPrinter } from '../src/cli/progress-bar.js';
 
-const deployments: Array<{ id: string; seed: number; triggers: CategoryName[] }> = [
-  {
-    id: 'ridge-trail-day',
-    seed: 4101,
-    triggers: [Category.wind, Category.animalCrossing, Category.empty, Category.exposure, Category.cloudShadow, Category.animalPartial, Category.rain, Category.shake, Category.animalSmall, Category.insect, Category.wind, Category.animalLingering],
-  },
-  {
-    id: 'creek-bend-night',
-    seed: 4202,
-    triggers: [Category.irLamp, Category.animalNight, Category.empty, Category.rain, Category.animalNight, Category.insect, Category.irLamp, Category.shake, Category.empty, Category.animalNight, Category.wind, Category.irLamp],
-  },
-];
-
-const rows: Array<Record<string, string | number>> = [];
-const counts = { 'likely-blank': 0, unsure: 0, motion: 0 };
-let animalsSetAside = 0;
-let animals = 0;
-for (const d of deployments) {
-  d.triggers.forEach((category, i) => {
-    const s = renderScene({ seed: d.seed * 100 + i, category, width: 320, height: 240, strip: { edge: 'bottom', share: 0.05, bar: 12, ink: 235 } });
-    const strip = detectDataStripInFrames(s.frames);
-    const a = analyseEvent({ frames: s.frames, mask: ignoreMask(s.width, s.height, strip) });
-    const r = scoreEvent(MOTION_MODEL, a);
-    counts[r.verdict]++;
-    if (s.animal) {
-      animals++;
-      if (r.verdict === 'likely-blank') animalsSetAside++;
-    }
-    rows.push({ deployment: d.id, trigger: i + 1, frames: s.frames.length, truth: s.animal ? `animal (${category})` : category, score: +r.score.toFixed(3), verdict: r.verdict });
-  });
-}
-console.log('Movesift demo: screening an invented scenario (generated scenes, fixed seeds)\n');
-console.table(rows);
-const clip = renderClip({ seed: 4303, width: 256, height: 144, fps: 4, duration: 45, visits: [{ start_s: 9, end_s: 16 }, { start_s: 30, end_s: 36 }] });
-const analyser = createClipAnalyser({ model: MOTION_MODEL });
-const scores = clip.frames.map((f, i) => analyser.push(f, clip.times[i]).score);
-const windows = activityWindows(clip.times, scores, { threshold: MOTION_MODEL.thresholds.blank, durationS: 45 });
-console.log('\nUnderwater clip (45 s, generated): fish in view', clip.windows.map((w) => `${w.start_s.toFixed(1)}-${w.end_s.toFixed(1)} s`).join(', '));
-console.log('Activity windows found:', windows.map((w) => `${w.start_s.toFixed(1)}-${w.end_s.toFixed(1)} s (score ${w.score.toFixed(2)})`).join(', ') || 'none');
-const total = rows.length;
-console.log(`\n${total} triggers: ${counts['likely-blank']} likely-blank, ${counts.unsure} unsure, ${counts.motion} motion.`);
-console.log(`Animals in the scenario: ${animals}; of them called likely-blank: ${animalsSetAside}.`);
-console.log('Nothing is moved or deleted: likely-blank is a proposal for a person to confirm.');
+const root = path.resolve(import.meta.dirname, '../sample-media');
+const ledger = path.join(mkdtempSync(path.join(os.tmpdir(), 'movesift-demo-')), 'demo.ledger');
+console.log(`Movesift demo: screening ${root}\n(an invented scenario: two trail-camera deployments and one underwater clip, all generated)\n`);
+const summary = await scan({ roots: [root], ledger, onProgress: progressPrinter(process.stderr.isTTY ? 'bar' : 'quiet') });
+const report = buildReport(ledger);
+const truth = JSON.parse(readFileSync(path.join(root, 'ground-truth.json'), 'utf8')) as { events: Array<{ files: string[]; category: string; animal: boolean }>; clips: Record<string, { fishInView: Array<{ start_s: number; end_s: number }> }> };
+const byFirst = new Map(truth.events.map((t) => [t.files[0], t]));
+console.table(
+  report.events.map((e) => {
+    const t = byFirst.get(e.files[0]);
+    const clip = truth.clips[e.files[0]];
+    return {
+      deployment: e.deployment,
+      kind: e.kind,
+      files: e.files.length,
+      start: e.start,
+      score: e.score,
+      verdict: e.verdict,
+      truth: clip ? `fish at ${clip.fishInView.map((w) => `${w.start_s.toFixed(0)}-${w.end_s.toFixed(0)} s`).join(', ')}` : t ? (t.animal ? `ANIMAL (${t.category})` : t.category) : '?',
+      windows: e.windows.map((w) => `${w.start_s}-${w.end_s} s`).join(', '),
+    };
+  }),
+);
+const animals = report.events.filter((e) => byFirst.get(e.files[0])?.animal);
+console.log(`\n${formatSummary(summary)}`);
+console.log(`Animal triggers in the scenario: ${animals.length}; called likely-blank: ${animals.filter((e) => e.verdict === 'likely-blank').length}.`);
+console.log(`Ledger: ${ledger}\nReport: npx movesift report ${ledger}`);

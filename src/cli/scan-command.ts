@@ -4,6 +4,10 @@ import { ExitCode, usageError } from './cli-errors.js';
 import { progressPrinter } from './progress-bar.js';
 import { DEFAULTS, scan, type ScanSummary } from '../pipeline/scan.js';
 import { DEFAULT_EVENT_GAP_S } from '../pipeline/group-events.js';
+import os from 'node:os';
+
+/** One core is left to decoding (libvips and ffmpeg run their own threads) and the desktop. */
+const DEFAULT_WORKERS = Math.max(1, Math.min(8, os.availableParallelism() - 1));
 
 export const SCAN_HELP = `Usage: movesift scan <folder>... --ledger <file> [options]
 
@@ -16,6 +20,7 @@ Options:
   --video-fps <n>         frames per second analysed in videos                      default ${DEFAULTS.videoFps}
   --event-gap <s>         seconds between images that start a new event             default ${DEFAULT_EVENT_GAP_S}
   --flow                  add dense optical flow features (slower)
+  --workers <n>           analysis threads                                          default ${DEFAULT_WORKERS} (cores - 1)
   --deployments <csv>     folder to deployment table (folder, deploymentID, locationName,
                           latitude, longitude, cameraID, cameraModel)
   --json-progress         print progress as one JSON object per line on stdout
@@ -35,12 +40,13 @@ export function formatSummary(s: ScanSummary): string {
 }
 
 export async function scanCommand(argv: string[]): Promise<number> {
-  const { values, positionals } = parse<{ ledger?: string; 'analysis-width'?: string; 'video-fps'?: string; 'event-gap'?: string; flow?: boolean; deployments?: string; 'json-progress'?: boolean }>(argv, {
+  const { values, positionals } = parse<{ ledger?: string; 'analysis-width'?: string; 'video-fps'?: string; 'event-gap'?: string; flow?: boolean; workers?: string; deployments?: string; 'json-progress'?: boolean }>(argv, {
     ledger: { type: 'string' },
     'analysis-width': { type: 'string' },
     'video-fps': { type: 'string' },
     'event-gap': { type: 'string' },
     flow: { type: 'boolean' },
+    workers: { type: 'string' },
     deployments: { type: 'string' },
     'json-progress': { type: 'boolean' },
   }, 'scan');
@@ -67,6 +73,7 @@ export async function scanCommand(argv: string[]): Promise<number> {
       videoFps: numberFlag('video-fps', values['video-fps'], 0.1, 60),
       eventGapS: numberFlag('event-gap', values['event-gap'], 0, 86400),
       flow: !!values.flow,
+      workers: numberFlag('workers', values.workers, 1, 64, true) ?? DEFAULT_WORKERS,
       deploymentsTable: values.deployments,
       signal: controller.signal,
       onProgress: progressPrinter(json ? 'json' : process.stderr.isTTY ? 'bar' : 'quiet'),

@@ -16,6 +16,8 @@ import { takeInventory } from './inventory.js';
 import { analysisSize } from '../kernels/downscale.js';
 import { createHash } from 'node:crypto';
 import type { ScanProgress } from './progress.js';
+import { createWorkerPool } from './worker-pool.js';
+import { safeOutcome } from './safe-outcome.js';
 
 export interface ScanOptions {
   roots: string[];
@@ -25,9 +27,10 @@ export interface ScanOptions {
   eventGapS?: number;
   flow?: boolean;
   deploymentsTable?: string;
-  /** Runs analyses; defaults to in-process. A worker pool passes its own. */
+  /** Runs analyses; defaults to in-process (workers 1) or a worker-thread pool. Tests pass their own. */
   runner?: (task: EventTask) => Promise<TaskOutcome>;
-  concurrency?: number;
+  /** Worker threads for analysis; 1 runs in the calling thread. */
+  workers?: number;
   signal?: AbortSignal;
   onProgress?: (p: ScanProgress) => void;
 }
@@ -66,7 +69,9 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
   const store = createScanStore(db);
   const hash = paramHash(settings);
   const scanId = store.startScan(roots, { ...settings, eventGapS: gap }, ENGINE_VERSION);
-  const runner = o.runner ?? runEventTask;
+  const workers = Math.max(1, Math.floor(o.workers ?? 1));
+  const pool = !o.runner && workers > 1 ? createWorkerPool(workers) : undefined;
+  const runner = (t: EventTask): Promise<TaskOutcome> => (pool ? pool.run(t) : safeOutcome(t, o.runner ?? runEventTask));
   const cacheDir = cacheDirOf(o.ledger);
   const summary: ScanSummary = { scanId, stopped: false, files: 0, events: 0, analysed: 0, skipped: 0, errors: 0, verdicts: { 'likely-blank': 0, unsure: 0, motion: 0 }, seconds: 0 };
   try {
@@ -128,7 +133,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
     emit({ type: 'phase', phase: 'analyse', total: todo.length, skipped: summary.skipped });
     let done = 0;
     const started = Date.now();
-    const concurrency = Math.max(1, o.concurrency ?? 1);
+    const concurrency = workers;
     let next = 0;
     const work = async (): Promise<void> => {
       while (next < todo.length && !o.signal?.aborted) {
@@ -173,6 +178,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
     store.endScan(scanId, 'failed');
     throw e;
   } finally {
+    await pool?.close();
     db.close();
   }
 }

@@ -45,6 +45,12 @@ describe('scan of sample-media', () => {
     expect(summary).toContain(`Verdicts: ${count('likely-blank')} likely-blank, ${count('unsure')} unsure, ${count('motion')} motion.`);
   });
 
+  it('gives the same report with two worker threads', () => {
+    const ledger = path.join(tempDir(), 'pool.ledger');
+    expect(runCli(['scan', 'sample-media', '--ledger', ledger, '--workers', '2']).code).toBe(0);
+    expect(JSON.parse(runCli(['report', ledger]).stdout)).toEqual(report);
+  });
+
   it('gives the clip activity windows inside its duration', () => {
     const clip = report.events.find((e) => e.kind === 'clip')!;
     expect(clip.files).toEqual(['reef-station/reef-drop-01.mp4']);
