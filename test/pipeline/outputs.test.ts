@@ -44,6 +44,16 @@ describe('scan outputs', () => {
     expect(rows[1][8]).toBe('north gate/IMG_0001.JPG;north gate/IMG_0002.JPG;north gate/IMG_0003.JPG');
   });
 
+  it('adds flow features with --flow, as a separate analysis setting', () => {
+    const r = runCli(['scan', media, '--ledger', ledger, '--deployments', table, '--flow']);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stdout).toContain('(1 screened now, 0 unchanged and skipped)'); // the parameter hash changed
+    const db = new Database(ledger, { readonly: true });
+    const f = JSON.parse((db.prepare('SELECT features FROM analyses').get() as { features: string }).features);
+    db.close();
+    expect(f.flow).toMatchObject({ meanMagnitude: expect.any(Number) });
+  });
+
   it('rejects a deployments table without the needed columns, exit 2', () => {
     const bad = path.join(d, 'bad.csv');
     writeFileSync(bad, 'path,id\nx,y\n');

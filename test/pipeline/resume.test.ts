@@ -49,4 +49,28 @@ describe('a scan killed mid-way', () => {
     expect(resumed.stdout).toMatch(new RegExp(`\\(${25 - n} screened now, ${n} unchanged and skipped\\)`));
     expect(JSON.parse(runCli(['report', killed]).stdout)).toEqual(JSON.parse(runCli(['report', whole]).stdout));
   });
+
+  it('stops cleanly on Ctrl-C (SIGINT) with exit 1, and a rerun completes', async () => {
+    const ledger = path.join(tempDir('movesift-int-'), 'int.ledger');
+    const child = startCli(['scan', 'sample-media', '--ledger', ledger, '--json-progress']);
+    await new Promise<void>((resolve) => {
+      child.stdout.on('data', (c: Buffer) => {
+        if (c.toString().includes('"phase":"analyse","done":3')) {
+          child.kill('SIGINT');
+          resolve();
+        }
+      });
+    });
+    const code = await new Promise<number | null>((r) => child.once('exit', (c) => r(c)));
+    expect(code).toBe(1);
+    const db = new Database(ledger, { readonly: true });
+    const status = (db.prepare('SELECT status FROM scans ORDER BY id DESC LIMIT 1').get() as { status: string }).status;
+    const n = (db.prepare('SELECT count(*) AS n FROM analyses').get() as { n: number }).n;
+    db.close();
+    expect(status).toBe('stopped');
+    expect(n).toBeGreaterThanOrEqual(3);
+    expect(n).toBeLessThan(25);
+    const again = runCli(['scan', 'sample-media', '--ledger', ledger]);
+    expect(again.stdout).toContain(`(${25 - n} screened now, ${n} unchanged and skipped)`);
+  });
 });
