@@ -1,0 +1,17 @@
+/** Error catalogue of the request handler; every error response is JSON {code, message}. */
+export const ApiErrorCode = {
+  notFound: 'E_NOT_FOUND',
+  badRequest: 'E_BAD_REQUEST',
+  methodNotAllowed: 'E_METHOD_NOT_ALLOWED',
+  rangeNotSatisfiable: 'E_RANGE_NOT_SATISFIABLE',
+  mediaMissing: 'E_MEDIA_MISSING',
+} as const;
+
+export type ApiErrorCodeValue = (typeof ApiErrorCode)[keyof typeof ApiErrorCode];
+
+export function errorResponse(status: number, code: ApiErrorCodeValue | string, message: string): Response {
+  return new Response(JSON.stringify({ code, message }), { status, headers: { 'content-type': 'application/json; charset=utf-8', 'cache-control': 'no-store' } });
+}
+
+export const json = (body: unknown, status = 200): Response =>
+  new Response(JSON.stringify(body), { status, headers: { 'content-type': 'application/json; charset=utf-8', 'cache-control': 'no-store' } });

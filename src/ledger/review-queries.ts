@@ -1,0 +1,130 @@
+/**
+ * Queries and writes behind the review handler: event pages with filters, one event whole,
+ * previews and media by ledger id, deployment counts, and the append-only decisions log.
+ */
+import { randomUUID } from 'node:crypto';
+import type { Ledger } from './open-ledger.js';
+
+export interface EventFilter {
+  verdict?: string;
+  deployment?: string;
+  scoreMin?: number;
+  scoreMax?: number;
+  /** 'none' = no decision yet. */
+  decision?: 'keep' | 'set-aside' | 'none';
+  light?: 'colour' | 'infrared';
+  sort: 'time' | 'score';
+  desc: boolean;
+  offset: number;
+  limit: number;
+}
+
+export interface EventCard {
+  id: string;
+  kind: string;
+  deployment: string;
+  start: string;
+  end: string;
+  frames: number;
+  score: number;
+  verdict: string;
+  decision: string | null;
+  light: string | null;
+  thumb: string | null;
+}
+
+const LATEST = 'LEFT JOIN decisions d ON d.id = (SELECT max(id) FROM decisions WHERE event_id = e.id)';
+
+export function createReviewQueries(db: Ledger) {
+  const eventStmt = db.prepare<[string], EventCard & { analysis_id: number; detail: string; features: string; engine_version: string; analysis_width: number; analysis_height: number }>(
+    `SELECT e.id, e.kind, e.deployment_id AS deployment, e.start_time AS start, e.end_time AS end, a.id AS analysis_id, a.score, a.verdict, a.detail, a.features,
+       a.engine_version, a.analysis_width, a.analysis_height, d.decision,
+       (SELECT count(*) FROM event_media WHERE event_id = e.id) AS frames,
+       (SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id ORDER BY em.position LIMIT 1) AS light,
+       NULL AS thumb
+     FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} WHERE e.id = ?`,
+  );
+  const mediaOfEvent = db.prepare<[string], { id: number; position: number; rel_path: string; kind: string; capture_time: string; width: number; height: number; duration_s: number | null }>(
+    'SELECT m.id, em.position, m.rel_path, m.kind, m.capture_time, m.width, m.height, m.duration_s FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = ? ORDER BY em.position',
+  );
+  const windowsOf = db.prepare<[number], { start_s: number; end_s: number; score: number }>('SELECT start_s, end_s, score FROM windows WHERE analysis_id = ? ORDER BY start_s');
+  const previewsOf = db.prepare<[number], { kind: string; position: number; width: number; height: number; time_s: number | null }>('SELECT kind, position, width, height, time_s FROM previews WHERE analysis_id = ? ORDER BY kind, position');
+  const previewPath = db.prepare<[string, string, number], { path: string }>('SELECT p.path FROM previews p JOIN analyses a ON a.id = p.analysis_id WHERE a.event_id = ? AND p.kind = ? AND p.position = ?');
+  const mediaFile = db.prepare<[number], { root: string; rel_path: string; kind: string; size: number; format: string | null }>('SELECT r.path AS root, m.rel_path, m.kind, m.size, m.format FROM media m JOIN roots r ON r.id = m.root_id WHERE m.id = ?');
+  const snapshot = db.prepare<[string], { score: number; verdict: string; engine_version: string; decision: string | null }>(`SELECT a.score, a.verdict, a.engine_version, d.decision FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} WHERE e.id = ?`);
+  const insertDecision = db.prepare('INSERT INTO decisions (event_id, decision, source, who, at, score, verdict, engine_version, batch, note) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)');
+  const lastBatch = db.prepare<[], { batch: string }>("SELECT batch FROM decisions WHERE source != 'undo' AND batch IS NOT NULL AND batch NOT IN (SELECT note FROM decisions WHERE source = 'undo' AND note IS NOT NULL) ORDER BY id DESC LIMIT 1");
+  const batchRows = db.prepare<[string], { id: number; event_id: string }>('SELECT id, event_id FROM decisions WHERE batch = ? ORDER BY id');
+  const decisionBefore = db.prepare<[string, number], { decision: string | null }>('SELECT decision FROM decisions WHERE event_id = ? AND id < ? ORDER BY id DESC LIMIT 1');
+  const summary = db.prepare<[], { deployment: string; verdict: string; decision: string | null; n: number }>(
+    `SELECT e.deployment_id AS deployment, a.verdict, d.decision, count(*) AS n FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} GROUP BY 1, 2, 3 ORDER BY 1`,
+  );
+
+  return {
+    listEvents(f: EventFilter): { total: number; events: EventCard[] } {
+      const where: string[] = [];
+      const args: unknown[] = [];
+      if (f.verdict) (where.push('a.verdict = ?'), args.push(f.verdict));
+      if (f.deployment) (where.push('e.deployment_id = ?'), args.push(f.deployment));
+      if (f.scoreMin !== undefined) (where.push('a.score >= ?'), args.push(f.scoreMin));
+      if (f.scoreMax !== undefined) (where.push('a.score <= ?'), args.push(f.scoreMax));
+      if (f.decision === 'none') where.push('d.decision IS NULL');
+      else if (f.decision) (where.push('d.decision = ?'), args.push(f.decision));
+      if (f.light) (where.push("(SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id ORDER BY em.position LIMIT 1) = ?"), args.push(f.light));
+      const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
+      const order = f.sort === 'score' ? `a.score ${f.desc ? 'DESC' : 'ASC'}, e.start_sort_ms` : `e.start_sort_ms ${f.desc ? 'DESC' : 'ASC'}, e.deployment_id`;
+      const total = (db.prepare(`SELECT count(*) AS n FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} ${w}`).get(...args) as { n: number }).n;
+      const events = db
+        .prepare(
+          `SELECT e.id, e.kind, e.deployment_id AS deployment, e.start_time AS start, e.end_time AS end, a.score, a.verdict, d.decision,
+             (SELECT count(*) FROM event_media WHERE event_id = e.id) AS frames,
+             (SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id ORDER BY em.position LIMIT 1) AS light,
+             (SELECT p.position FROM previews p WHERE p.analysis_id = a.id AND p.kind = 'frame' ORDER BY p.position LIMIT 1) AS thumb
+           FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} ${w} ORDER BY ${order}, e.id LIMIT ? OFFSET ?`,
+        )
+        .all(...args, f.limit, f.offset) as EventCard[];
+      return { total, events };
+    },
+    event(id: string) {
+      const e = eventStmt.get(id);
+      if (!e) return undefined;
+      const { analysis_id, detail, features, ...card } = e;
+      return { ...card, detail: JSON.parse(detail) as unknown, features: JSON.parse(features) as unknown, media: mediaOfEvent.all(id), windows: windowsOf.all(analysis_id), previews: previewsOf.all(analysis_id) };
+    },
+    previewPath: (eventId: string, kind: string, position: number) => previewPath.get(eventId, kind, position)?.path,
+    mediaFile: (id: number) => mediaFile.get(id),
+    summary: () => summary.all(),
+    /** Appends one decision per event (one batch, one transaction); unknown ids are returned, not written. */
+    decide: db.transaction((ids: string[], decision: 'keep' | 'set-aside', source: string, who: string | null) => {
+      const batch = randomUUID();
+      const at = new Date().toISOString();
+      const missing: string[] = [];
+      let changed = 0;
+      for (const id of ids) {
+        const s = snapshot.get(id);
+        if (!s) {
+          missing.push(id);
+          continue;
+        }
+        if (s.decision !== decision) changed++;
+        insertDecision.run(id, decision, source, who, at, s.score, s.verdict, s.engine_version, batch, null);
+      }
+      return { batch, written: ids.length - missing.length, changed, missing };
+    }),
+    /** Undoes the latest batch not yet undone: appends, per event, the decision it had before. */
+    undoLast: db.transaction((who: string | null) => {
+      const b = lastBatch.get();
+      if (!b) return { batch: null, restored: 0 };
+      const at = new Date().toISOString();
+      const rows = batchRows.all(b.batch);
+      for (const r of rows) {
+        const prev = decisionBefore.get(r.event_id, r.id)?.decision ?? null;
+        const s = snapshot.get(r.event_id);
+        insertDecision.run(r.event_id, prev, 'undo', who, at, s?.score ?? null, s?.verdict ?? null, s?.engine_version ?? null, null, b.batch);
+      }
+      return { batch: b.batch, restored: rows.length };
+    }),
+  };
+}
+
+export type ReviewQueries = ReturnType<typeof createReviewQueries>;
