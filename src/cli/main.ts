@@ -6,6 +6,7 @@
 import { ExitCode, USAGE_CODES } from './cli-errors.js';
 import { scanCommand } from './scan-command.js';
 import { reportCommand } from './report-command.js';
+import { decideCommand } from './decide-command.js';
 
 const HELP = `Usage: movesift <command> [options]
 
@@ -14,10 +15,11 @@ Screens camera-trap bursts and survey video by motion and keeps the result in a 
 Commands:
   scan <folder>... --ledger <file>     screen media into a ledger (resumable)
   report <ledger> [--format json|csv]  print the screening result
+  decide <ledger> --keep|--set-aside   record decisions for events matching filters
 
 Run \`movesift <command> --help\` for a command's options.`;
 
-const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand };
+const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand, decide: decideCommand };
 
 export async function main(argv: string[]): Promise<number> {
   const [cmd, ...rest] = argv;

@@ -91,6 +91,17 @@ export function createReviewQueries(db: Ledger) {
       const { analysis_id, detail, features, ...card } = e;
       return { ...card, detail: JSON.parse(detail) as unknown, features: JSON.parse(features) as unknown, media: mediaOfEvent.all(id), windows: windowsOf.all(analysis_id), previews: previewsOf.all(analysis_id) };
     },
+    /** Ids of analysed events matching every given condition (for scripted decisions). */
+    matchingIds(m: { verdict?: string; scoreBelow?: number; deployment?: string; ids?: string[] }): string[] {
+      const where: string[] = [];
+      const args: unknown[] = [];
+      if (m.verdict) (where.push('a.verdict = ?'), args.push(m.verdict));
+      if (m.scoreBelow !== undefined) (where.push('a.score < ?'), args.push(m.scoreBelow));
+      if (m.deployment) (where.push('e.deployment_id = ?'), args.push(m.deployment));
+      if (m.ids?.length) (where.push(`e.id IN (${m.ids.map(() => '?').join(', ')})`), args.push(...m.ids));
+      const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
+      return (db.prepare(`SELECT e.id FROM events e JOIN analyses a ON a.event_id = e.id ${w} ORDER BY e.deployment_id, e.start_sort_ms, e.id`).all(...args) as Array<{ id: string }>).map((r) => r.id);
+    },
     previewPath: (eventId: string, kind: string, position: number) => previewPath.get(eventId, kind, position)?.path,
     mediaFile: (id: number) => mediaFile.get(id),
     summary: () => summary.all(),

@@ -125,7 +125,7 @@ describe('bad usage', () => {
     expect(runCli(['frobnicate']).code).toBe(2);
   });
   it('prints help for every command', () => {
-    for (const c of ['scan', 'report']) {
+    for (const c of ['scan', 'report', 'decide']) {
       const r = runCli([c, '--help']);
       expect(r.code).toBe(0);
       expect(r.stdout).toMatch(new RegExp(`^Usage: movesift ${c}`));
