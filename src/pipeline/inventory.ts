@@ -73,7 +73,8 @@ export async function takeInventory(
     try {
       facts = await fingerprintFile(f.abs);
     } catch (e) {
-      errors.push({ rel: f.rel, error: { fingerprint: null, stage: 'read', code: fromFsError(display, e).code, message: fromFsError(display, e).message } });
+      const err = fromFsError(display, e);
+      errors.push({ rel: f.rel, error: { fingerprint: null, stage: 'read', code: err.code, message: err.message } });
       onFile(f);
       return;
     }

@@ -102,12 +102,16 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
       const ids = store.replaceRootMedia(rootId, inv.rows);
       const rows = inv.rows.map((r, i) => ({ ...r, id: ids[i] }));
       const byDeployment = new Map<string, typeof rows>();
-      for (const r of rows) byDeployment.set(r.deployment_id, [...(byDeployment.get(r.deployment_id) ?? []), r]);
+      for (const r of rows) {
+        const list = byDeployment.get(r.deployment_id);
+        if (list) list.push(r);
+        else byDeployment.set(r.deployment_id, [r]);
+      }
       const plans: EventPlan[] = [];
       for (const [dep, media] of byDeployment) {
         const byId = new Map(media.map((m) => [m.id, m]));
         const groups = groupEvents(media.map((m) => ({ mediaId: m.id, rel: m.rel_path, kind: m.kind, sortMs: m.capture_sort_ms })), gap, MAX_EVENT_FRAMES);
-        const imageGroups = groups.filter((g) => g.kind !== 'clip');
+        const neighbourMap = singleNeighbours(groups.filter((g) => g.kind !== 'clip'), byId);
         for (const g of groups) {
           const items = g.items.map((it) => byId.get(it.mediaId)!);
           const id = eventIdOf(dep, items[0].rel_path);
@@ -118,7 +122,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
           plans.push(plan);
           const first = items[0];
           const size = analysisSize(first.width, first.height, Math.min(settings.analysisWidth, first.width));
-          const neighbours = g.kind !== 'single' ? [] : neighboursOf(imageGroups, g, byId).map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path }));
+          const neighbours = (neighbourMap.get(g) ?? []).map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path }));
           tasks.push({
             plan, rootId, rels: items.map((m) => m.rel_path),
             task: { eventId: id, kind: g.kind, files: items.map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path })), neighbours, width: size.width, height: size.height, videoFps: settings.videoFps, flow: settings.flow, cacheDir },
@@ -183,17 +187,31 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
   }
 }
 
-/** For a single image (a burst is its own reference): middle media of the nearest image events (two before, two after, more on one side when the
- *  other runs out) with the same light mode: the deployment background for this event. */
-function neighboursOf(groups: Group[], g: Group, byId: Map<number, MediaRow & { id: number }>): Array<MediaRow & { id: number }> {
-  const mid = (x: Group) => byId.get(x.items[x.items.length >> 1].mediaId)!;
-  const light = mid(g).light;
-  const same = groups.filter((x) => x === g || mid(x).light === light);
-  const k = same.indexOf(g);
-  const out: Array<MediaRow & { id: number }> = [];
-  for (let d = 1; out.length < 4 && (k - d >= 0 || k + d < same.length); d++) {
-    if (k - d >= 0) out.push(mid(same[k - d]));
-    if (out.length < 4 && k + d < same.length) out.push(mid(same[k + d]));
+type StoredMedia = MediaRow & { id: number };
+
+/** For each single image (a burst is its own reference): middle media of the nearest image
+ *  events (two before, two after, more on one side when the other runs out) with the same light
+ *  mode: the deployment background for that event. One pass per deployment. */
+function singleNeighbours(groups: Group[], byId: Map<number, StoredMedia>): Map<Group, StoredMedia[]> {
+  const mid = (x: Group): StoredMedia => byId.get(x.items[x.items.length >> 1].mediaId)!;
+  const byLight = new Map<string | null, Group[]>();
+  for (const g of groups) {
+    const light = mid(g).light;
+    const list = byLight.get(light);
+    if (list) list.push(g);
+    else byLight.set(light, [g]);
+  }
+  const out = new Map<Group, StoredMedia[]>();
+  for (const same of byLight.values()) {
+    same.forEach((g, k) => {
+      if (g.kind !== 'single') return;
+      const near: StoredMedia[] = [];
+      for (let d = 1; near.length < 4 && (k - d >= 0 || k + d < same.length); d++) {
+        if (k - d >= 0) near.push(mid(same[k - d]));
+        if (near.length < 4 && k + d < same.length) near.push(mid(same[k + d]));
+      }
+      out.set(g, near);
+    });
   }
   return out;
 }
