@@ -44,8 +44,12 @@ async function send(res: ServerResponse, r: Response, extra: Record<string, stri
   r.headers.forEach((v, k) => (headers[k] = v));
   res.writeHead(r.status, headers);
   if (!r.body) return void res.end();
+  const body = Readable.fromWeb(r.body as import('node:stream/web').ReadableStream);
+  // A client that goes away (a closed tab, a seek that abandons a range) cancels the body, so an
+  // open event stream unsubscribes and a file stream closes its descriptor.
+  res.on('close', () => body.destroy());
   await new Promise<void>((resolve) => {
-    Readable.fromWeb(r.body as import('node:stream/web').ReadableStream).on('end', resolve).on('error', resolve).pipe(res);
+    body.on('end', resolve).on('error', resolve).on('close', resolve).pipe(res);
   });
 }
 

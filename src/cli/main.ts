@@ -7,6 +7,7 @@ import { ExitCode, USAGE_CODES } from './cli-errors.js';
 import { scanCommand } from './scan-command.js';
 import { reportCommand } from './report-command.js';
 import { decideCommand } from './decide-command.js';
+import { reviewCommand } from './review-command.js';
 
 const HELP = `Usage: movesift <command> [options]
 
@@ -15,11 +16,12 @@ Screens camera-trap bursts and survey video by motion and keeps the result in a 
 Commands:
   scan <folder>... --ledger <file>     screen media into a ledger (resumable)
   report <ledger> [--format json|csv]  print the screening result
+  review [<ledger>]                    the review app in your browser (keyboard-driven)
   decide <ledger> --keep|--set-aside   record decisions for events matching filters
 
 Run \`movesift <command> --help\` for a command's options.`;
 
-const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand, decide: decideCommand };
+const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand, review: reviewCommand, decide: decideCommand };
 
 export async function main(argv: string[]): Promise<number> {
   const [cmd, ...rest] = argv;

@@ -44,6 +44,7 @@ export function openLedger(file: string, o: { create?: boolean; readonly?: boole
   } catch (e) {
     db.close();
     if ((e as { code?: string }).code?.startsWith('E_LEDGER')) throw e;
+    if ((e as { code?: string }).code === 'SQLITE_NOTADB') throw ledgerError(LedgerErrorCode.notLedger, `${file}: is not a Movesift ledger (not a database at all); give a new file name or an existing ledger`);
     throw ledgerError(LedgerErrorCode.unwritable, `${file}: cannot use the ledger (${(e as Error).message}); check the disk and the file's permissions`);
   }
 }

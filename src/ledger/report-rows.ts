@@ -36,7 +36,8 @@ export function reportEvents(db: Ledger): ReportEventRow[] {
        JOIN analyses a ON a.event_id = e.id
        JOIN deployments dp ON dp.id = e.deployment_id
        JOIN roots r ON r.id = dp.root_id
-       LEFT JOIN decisions d ON d.id = (SELECT max(id) FROM decisions WHERE event_id = e.id)
+       LEFT JOIN latest_decisions ld ON ld.event_id = e.id
+       LEFT JOIN decisions d ON d.id = ld.decision_id
        ORDER BY e.deployment_id, e.start_sort_ms, e.id`,
     )
     .all();

@@ -3,37 +3,34 @@
  * previews and media by ledger id, deployment counts, and the append-only decisions log.
  */
 import { randomUUID } from 'node:crypto';
+import type { EventCard, EventFilter } from '../shared/review-api.js';
 import type { Ledger } from './open-ledger.js';
 
-export interface EventFilter {
-  verdict?: string;
-  deployment?: string;
-  scoreMin?: number;
-  scoreMax?: number;
-  /** 'none' = no decision yet. */
-  decision?: 'keep' | 'set-aside' | 'none';
-  light?: 'colour' | 'infrared';
-  sort: 'time' | 'score';
-  desc: boolean;
-  offset: number;
-  limit: number;
+export type { EventCard, EventFilter };
+
+/** The decision that counts per event (migration 2 keeps it from the append-only log). */
+const LATEST = 'LEFT JOIN latest_decisions d ON d.event_id = e.id';
+const LIGHT = "(SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id ORDER BY em.position LIMIT 1)";
+
+/** WHERE clause and arguments for a filter; shared by pages, counts and "all shown". */
+function whereOf(f: Omit<EventFilter, 'sort' | 'desc' | 'offset' | 'limit'>): { w: string; args: unknown[] } {
+  const where: string[] = [];
+  const args: unknown[] = [];
+  if (f.verdict) (where.push('a.verdict = ?'), args.push(f.verdict));
+  if (f.deployment) (where.push('e.deployment_id = ?'), args.push(f.deployment));
+  if (f.scoreMin !== undefined) (where.push('a.score >= ?'), args.push(f.scoreMin));
+  if (f.scoreMax !== undefined) (where.push('a.score <= ?'), args.push(f.scoreMax));
+  if (f.decision === 'none') where.push('d.decision IS NULL');
+  else if (f.decision) (where.push('d.decision = ?'), args.push(f.decision));
+  if (f.light) (where.push(`${LIGHT} = ?`), args.push(f.light));
+  return { w: where.length ? `WHERE ${where.join(' AND ')}` : '', args };
 }
 
-export interface EventCard {
-  id: string;
-  kind: string;
-  deployment: string;
-  start: string;
-  end: string;
-  frames: number;
-  score: number;
-  verdict: string;
-  decision: string | null;
-  light: string | null;
-  thumb: string | null;
+/** Orders that match the migration 2 indexes, so a page deep in the grid is an index walk. */
+function orderOf(f: Pick<EventFilter, 'sort' | 'desc'>): string {
+  const dir = f.desc ? 'DESC' : 'ASC';
+  return f.sort === 'score' ? `a.score ${dir}, a.event_id ${dir}` : `e.start_sort_ms ${dir}, e.deployment_id ${dir}, e.id ${dir}`;
 }
-
-const LATEST = 'LEFT JOIN decisions d ON d.id = (SELECT max(id) FROM decisions WHERE event_id = e.id)';
 
 export function createReviewQueries(db: Ledger) {
   const eventStmt = db.prepare<[string], EventCard & { analysis_id: number; detail: string; features: string; engine_version: string; analysis_width: number; analysis_height: number }>(
@@ -41,7 +38,7 @@ export function createReviewQueries(db: Ledger) {
        a.engine_version, a.analysis_width, a.analysis_height, d.decision,
        (SELECT count(*) FROM event_media WHERE event_id = e.id) AS frames,
        (SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id ORDER BY em.position LIMIT 1) AS light,
-       NULL AS thumb
+       NULL AS thumb, NULL AS heat
      FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} WHERE e.id = ?`,
   );
   const mediaOfEvent = db.prepare<[string], { id: number; position: number; rel_path: string; kind: string; capture_time: string; width: number; height: number; duration_s: number | null }>(
@@ -61,29 +58,26 @@ export function createReviewQueries(db: Ledger) {
   );
 
   return {
-    listEvents(f: EventFilter): { total: number; events: EventCard[] } {
-      const where: string[] = [];
-      const args: unknown[] = [];
-      if (f.verdict) (where.push('a.verdict = ?'), args.push(f.verdict));
-      if (f.deployment) (where.push('e.deployment_id = ?'), args.push(f.deployment));
-      if (f.scoreMin !== undefined) (where.push('a.score >= ?'), args.push(f.scoreMin));
-      if (f.scoreMax !== undefined) (where.push('a.score <= ?'), args.push(f.scoreMax));
-      if (f.decision === 'none') where.push('d.decision IS NULL');
-      else if (f.decision) (where.push('d.decision = ?'), args.push(f.decision));
-      if (f.light) (where.push("(SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id ORDER BY em.position LIMIT 1) = ?"), args.push(f.light));
-      const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
-      const order = f.sort === 'score' ? `a.score ${f.desc ? 'DESC' : 'ASC'}, e.start_sort_ms` : `e.start_sort_ms ${f.desc ? 'DESC' : 'ASC'}, e.deployment_id`;
-      const total = (db.prepare(`SELECT count(*) AS n FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} ${w}`).get(...args) as { n: number }).n;
+    /** One page; `total` only when asked (a count walks every matching row). */
+    listEvents(f: EventFilter, withTotal = true): { total?: number; events: EventCard[] } {
+      const { w, args } = whereOf(f);
+      const total = withTotal ? (db.prepare(`SELECT count(*) AS n FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} ${w}`).get(...args) as { n: number }).n : undefined;
       const events = db
         .prepare(
           `SELECT e.id, e.kind, e.deployment_id AS deployment, e.start_time AS start, e.end_time AS end, a.score, a.verdict, d.decision,
              (SELECT count(*) FROM event_media WHERE event_id = e.id) AS frames,
-             (SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id ORDER BY em.position LIMIT 1) AS light,
-             (SELECT p.position FROM previews p WHERE p.analysis_id = a.id AND p.kind = 'frame' ORDER BY p.position LIMIT 1) AS thumb
-           FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} ${w} ORDER BY ${order}, e.id LIMIT ? OFFSET ?`,
+             ${LIGHT} AS light,
+             (SELECT p.position FROM previews p WHERE p.analysis_id = a.id AND p.kind = 'frame' ORDER BY p.position LIMIT 1) AS thumb,
+             (SELECT p.position FROM previews p WHERE p.analysis_id = a.id AND p.kind = 'heat' LIMIT 1) AS heat
+           FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} ${w} ORDER BY ${orderOf(f)} LIMIT ? OFFSET ?`,
         )
         .all(...args, f.limit, f.offset) as EventCard[];
       return { total, events };
+    },
+    /** Every id the filter shows, in grid order (for a decision on "all shown"). */
+    idsOf(f: Omit<EventFilter, 'offset' | 'limit'>): string[] {
+      const { w, args } = whereOf(f);
+      return (db.prepare(`SELECT e.id FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} ${w} ORDER BY ${orderOf(f)}`).pluck().all(...args) as string[]);
     },
     event(id: string) {
       const e = eventStmt.get(id);
@@ -101,6 +95,12 @@ export function createReviewQueries(db: Ledger) {
       if (m.ids?.length) (where.push(`e.id IN (${m.ids.map(() => '?').join(', ')})`), args.push(...m.ids));
       const w = where.length ? `WHERE ${where.join(' AND ')}` : '';
       return (db.prepare(`SELECT e.id FROM events e JOIN analyses a ON a.event_id = e.id ${w} ORDER BY e.deployment_id, e.start_sort_ms, e.id`).all(...args) as Array<{ id: string }>).map((r) => r.id);
+    },
+    /** How many events the filter shows per verdict (what a bulk decision on "all shown" would touch). */
+    verdictCountsOf(f: Omit<EventFilter, 'sort' | 'desc' | 'offset' | 'limit'>): Record<string, number> {
+      const { w, args } = whereOf(f);
+      const rows = db.prepare(`SELECT a.verdict, count(*) AS n FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} ${w} GROUP BY a.verdict`).all(...args) as Array<{ verdict: string; n: number }>;
+      return Object.fromEntries(rows.map((r) => [r.verdict, r.n]));
     },
     previewPath: (eventId: string, kind: string, position: number) => previewPath.get(eventId, kind, position)?.path,
     mediaFile: (id: number) => mediaFile.get(id),
@@ -125,15 +125,17 @@ export function createReviewQueries(db: Ledger) {
     /** Undoes the latest batch not yet undone: appends, per event, the decision it had before. */
     undoLast: db.transaction((who: string | null) => {
       const b = lastBatch.get();
-      if (!b) return { batch: null, restored: 0 };
+      if (!b) return { batch: null, restored: 0, events: [] };
       const at = new Date().toISOString();
       const rows = batchRows.all(b.batch);
+      const events: Array<{ id: string; decision: string | null }> = [];
       for (const r of rows) {
         const prev = decisionBefore.get(r.event_id, r.id)?.decision ?? null;
         const s = snapshot.get(r.event_id);
         insertDecision.run(r.event_id, prev, 'undo', who, at, s?.score ?? null, s?.verdict ?? null, s?.engine_version ?? null, null, b.batch);
+        events.push({ id: r.event_id, decision: prev });
       }
-      return { batch: b.batch, restored: rows.length };
+      return { batch: b.batch, restored: rows.length, events };
     }),
   };
 }

@@ -36,7 +36,7 @@ describe('openLedger', () => {
     o.close();
     expect(() => openLedger(foreign)).toThrow(expect.objectContaining({ code: 'E_LEDGER_NOT_LEDGER' }));
     writeFileSync(path.join(d, 'text.ledger'), 'hello, not a database at all, really not');
-    expect(() => openLedger(path.join(d, 'text.ledger'))).toThrow(expect.objectContaining({ code: 'E_LEDGER_UNWRITABLE' }));
+    expect(() => openLedger(path.join(d, 'text.ledger'))).toThrow(expect.objectContaining({ code: 'E_LEDGER_NOT_LEDGER' }));
     const newer = path.join(d, 'newer.ledger');
     openLedger(newer, { create: true }).close();
     const n = new Database(newer);

@@ -1,0 +1,22 @@
+/**
+ * When a set-aside needs a second look, and the words that say why. Setting aside is only a mark
+ * (nothing moves until someone applies), but a wrong mark can still cost an animal later, so we
+ * ask whenever many events go at once or the screener saw motion in any of them.
+ */
+import type { Verdict } from '../../../../src/shared/review-api';
+import type { ConfirmRequest } from './confirm-dialog';
+import { count } from './format';
+
+/** Above this many events a set-aside is confirmed (common practice for bulk destructive-looking actions; our choice). */
+export const BULK_CONFIRM_AT = 10;
+
+export function setAsideWarning(n: number, verdicts: Readonly<Record<Verdict, number>>): ConfirmRequest | null {
+  const risky = verdicts.motion + verdicts.unsure;
+  if (n < BULK_CONFIRM_AT && verdicts.motion === 0) return null;
+  const lines = n === 1 ? [] : [`${count(verdicts['likely-blank'])} likely blank, ${count(verdicts.unsure)} unsure, ${count(verdicts.motion)} motion.`];
+  if (verdicts.motion > 0 && n === 1) lines.push('The screener saw motion in this event: an animal may be there. Look at it before setting it aside.');
+  else if (verdicts.motion > 0) lines.push(`The screener saw motion in ${count(verdicts.motion)} of them: an animal may be there. Look at those before setting them aside.`);
+  else if (risky > 0) lines.push(`${count(risky)} of them the screener was unsure about.`);
+  lines.push('Set-aside events are only marked: nothing is moved until someone applies the decisions, and u undoes this.');
+  return { title: `Set aside ${count(n)} event${n === 1 ? '' : 's'}?`, lines, yesLabel: `Yes, set aside ${count(n)}` };
+}

@@ -1,0 +1,155 @@
+/**
+ * The shapes the review API sends and takes: the contract between the request handler and the
+ * renderer (which imports these types and nothing else from the backend).
+ */
+export type Verdict = 'likely-blank' | 'unsure' | 'motion';
+export type Decision = 'keep' | 'set-aside';
+export type Light = 'colour' | 'infrared';
+
+export interface EventFilter {
+  verdict?: Verdict;
+  deployment?: string;
+  scoreMin?: number;
+  scoreMax?: number;
+  /** 'none' = no decision yet. */
+  decision?: Decision | 'none';
+  light?: Light;
+  sort: 'time' | 'score';
+  desc: boolean;
+  offset: number;
+  limit: number;
+}
+
+export interface EventCard {
+  id: string;
+  kind: 'burst' | 'single' | 'clip';
+  deployment: string;
+  start: string;
+  end: string;
+  frames: number;
+  score: number;
+  verdict: Verdict;
+  decision: Decision | null;
+  light: Light | null;
+  /** Position of the first frame preview, or null when the event has none. */
+  thumb: number | null;
+  /** Position of the change-overlay preview, or null. */
+  heat: number | null;
+}
+
+export interface EventPage {
+  total?: number;
+  events: EventCard[];
+}
+
+export interface BlobBox {
+  x: number;
+  y: number;
+  w: number;
+  h: number;
+  area: number;
+  peak: number;
+}
+
+export interface EventMedia {
+  id: number;
+  position: number;
+  rel_path: string;
+  kind: 'image' | 'video';
+  capture_time: string;
+  width: number;
+  height: number;
+  duration_s: number | null;
+}
+
+export interface PreviewInfo {
+  kind: 'frame' | 'heat';
+  position: number;
+  width: number;
+  height: number;
+  time_s: number | null;
+}
+
+export interface ActivityWindow {
+  start_s: number;
+  end_s: number;
+  score: number;
+}
+
+/** `detail` of a burst or single image (pipeline/analyse-task.ts). */
+export interface ImageDetail {
+  strip: { top: number; bottom: number };
+  background: number;
+  frames: Array<{ position: number; shift: { dx: number; dy: number; confidence: number }; compensated: boolean; blobs: BlobBox[] }>;
+  bestTrack: Array<BlobBox & { position: number }>;
+}
+
+/** `detail` of a clip: the activity score of every analysed frame. */
+export interface ClipDetail {
+  times: number[];
+  scores: number[];
+}
+
+export interface EventDetail extends Omit<EventCard, 'thumb' | 'heat'> {
+  engine_version: string;
+  analysis_width: number;
+  analysis_height: number;
+  detail: ImageDetail | ClipDetail;
+  features: unknown;
+  media: EventMedia[];
+  windows: ActivityWindow[];
+  previews: PreviewInfo[];
+}
+
+export interface DeploymentCount {
+  deployment: string;
+  verdict: Verdict;
+  decision: Decision | null;
+  n: number;
+}
+
+export interface DecideResult {
+  batch: string;
+  written: number;
+  changed: number;
+  missing: string[];
+}
+
+export interface UndoResult {
+  batch: string | null;
+  restored: number;
+  /** Each event the undo touched and the decision it has again (null: none). */
+  events: Array<{ id: string; decision: Decision | null }>;
+}
+
+export interface ScanJobState {
+  job: number;
+  ledger: string;
+  folders: string[];
+  status: 'running' | 'done' | 'stopped' | 'failed';
+  phase: 'discover' | 'read' | 'analyse' | null;
+  done: number;
+  total: number;
+  skipped: number;
+  rate: number | null;
+  etaS: number | null;
+  file: string | null;
+  errorCount: number;
+  /** The latest file errors, newest last (the ledger holds all of them). */
+  errors: Array<{ file: string; code: string; message: string }>;
+  summary: { files: number; events: number; analysed: number; skipped: number; errors: number; verdicts: Record<string, number>; seconds: number; stopped: boolean } | null;
+  failure: { code: string; message: string } | null;
+}
+
+export interface SessionInfo {
+  ledger: string | null;
+  name: string | null;
+  engineVersion: string;
+  user: string;
+  scan: ScanJobState | null;
+}
+
+export interface ApiError {
+  code: string;
+  message: string;
+}
