@@ -16,7 +16,8 @@ import { parseArgs } from 'node:util';
 import sharp from 'sharp';
 import { resolveBinaries } from '../src/media/ffmpeg-binaries.js';
 import { Category, type CategoryName } from './scenes/categories.js';
-import { renderClip, renderScene } from './scenes/render.js';
+import { renderScene } from './scenes/render.js';
+import { renderClip } from './scenes/clip.js';
 import { makeRng } from './scenes/random.js';
 
 const { values } = parseArgs({ options: { out: { type: 'string' }, scale: { type: 'string' }, 'clip-seconds': { type: 'string' }, 'clip-width': { type: 'string' }, seed: { type: 'string' } } });

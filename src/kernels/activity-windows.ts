@@ -7,7 +7,7 @@
  * post-roll, runs merged when under 3 s apart.
  */
 import { invalidArgument } from '../shared/errors.js';
-import { checkNumber } from '../shared/validate.js';
+import { checkInteger, checkNumber } from '../shared/validate.js';
 
 export interface ActivityWindow {
   start_s: number;
@@ -17,6 +17,10 @@ export interface ActivityWindow {
 
 export interface WindowOptions {
   threshold: number;
+  /** Odd number of frames in a centred running median applied to the scores before the
+   *  threshold: 1 leaves them as they are; 3 or 5 drop one- or two-frame flickers (caustics,
+   *  a passing particle) that a subject in view does not produce. */
+  smoothFrames?: number;
   preRollS?: number;
   postRollS?: number;
   mergeGapS?: number;
@@ -29,12 +33,18 @@ export function activityWindows(times: readonly number[], scores: readonly numbe
   const pre = checkNumber('preRollS', o.preRollS ?? 1, 0, 3600);
   const post = checkNumber('postRollS', o.postRollS ?? 2, 0, 3600);
   const gap = checkNumber('mergeGapS', o.mergeGapS ?? 3, 0, 3600);
+  const k = checkInteger('smoothFrames', o.smoothFrames ?? 1, 1, 61);
+  if (k % 2 === 0) throw invalidArgument('smoothFrames', 'an odd number of frames', k);
   const end = o.durationS ?? (times.length ? times[times.length - 1] : 0);
+  const level = k === 1 ? scores : runningMedian(scores, k);
   const runs: ActivityWindow[] = [];
   for (let i = 0; i < times.length; i++) {
-    if (!(scores[i] >= o.threshold)) continue;
+    if (!(level[i] >= o.threshold)) continue;
     const last = runs[runs.length - 1];
-    if (last && times[i] - last.end_s <= gap) {
+    // Consecutive active frames are one run whatever the gap setting; runs with inactive frames
+    // between them merge when closer than the gap.
+    const continues = i > 0 && level[i - 1] >= o.threshold;
+    if (last && (continues || times[i] - last.end_s <= gap)) {
       last.end_s = times[i];
       last.score = Math.max(last.score, scores[i]);
     } else runs.push({ start_s: times[i], end_s: times[i], score: scores[i] });
@@ -48,6 +58,21 @@ export function activityWindows(times: readonly number[], scores: readonly numbe
       last.end_s = Math.max(last.end_s, w.end_s);
       last.score = Math.max(last.score, w.score);
     } else out.push({ ...w });
+  }
+  return out;
+}
+
+/** Centred running median of odd width k; the ends use the frames that exist. */
+export function runningMedian(v: readonly number[], k: number): number[] {
+  const h = k >> 1;
+  const out = new Array<number>(v.length);
+  const win: number[] = [];
+  for (let i = 0; i < v.length; i++) {
+    win.length = 0;
+    for (let j = Math.max(0, i - h); j <= Math.min(v.length - 1, i + h); j++) win.push(v[j]);
+    win.sort((a, b) => a - b);
+    const m = win.length >> 1;
+    out[i] = win.length % 2 ? win[m] : (win[m - 1] + win[m]) / 2;
   }
   return out;
 }

@@ -1,7 +1,7 @@
 /**
  * Streaming activity analysis of a clip, frame by frame (the caller decodes at the analysis
- * rate and never holds the clip): a running background with its memory in seconds, change
- * against it and against the previous frame, the same noise-scaled thresholds, blobs and
+ * rate and never holds the clip): a median background over the last minute (median-history.ts:
+ * no ghost where a fish was), change against it and against the previous frame, the same noise-scaled thresholds, blobs and
  * tracks as a burst, scored by the same model over a sliding window of recent frames.
  * The analyser's state lives in the object it returns; the caller owns it.
  */
@@ -11,7 +11,7 @@ import { checkFrame, type GreyFrame, type RgbFrame } from './frame.js';
 import { close3x3, open3x3 } from './morphology.js';
 import { checkParams, SNR_SCALE, type EngineParams } from './params.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
-import { backgroundToFrame, learningRate, startBackground, updateBackground } from './running-background.js';
+import { createMedianHistory, offerFrame } from './median-history.js';
 import { featureVector, trackScore, type MotionModel } from './score.js';
 import { maxImage, orMask, toSnr } from './snr-image.js';
 import { thresholdHysteresis } from './threshold.js';
@@ -30,8 +30,11 @@ export interface ClipOptions {
 
 export interface FrameActivity {
   t: number;
+  /** The best score of the tracks that reach this frame (0 when none does). */
   score: number;
   blobs: Blob[];
+  /** Each track reaching this frame: its raw feature row, its blob here, its score. */
+  tracks: Array<{ row: number[]; blob: Blob; score: number }>;
 }
 
 export interface ClipAnalyser {
@@ -41,7 +44,7 @@ export interface ClipAnalyser {
 export function createClipAnalyser(o: ClipOptions): ClipAnalyser {
   const params = checkParams(o.params ?? {});
   const K = checkInteger('windowFrames', o.windowFrames ?? 6, 2, 60);
-  let bg: ReturnType<typeof startBackground> | undefined;
+  const history = createMedianHistory(params.historySeconds, params.historySamples);
   let prev: RgbFrame | undefined;
   let lastT = 0;
   const recent: Blob[][] = [];
@@ -50,14 +53,14 @@ export function createClipAnalyser(o: ClipOptions): ClipAnalyser {
     push(frame, t) {
       checkFrame('frame', frame, 3);
       if (!Number.isFinite(t) || t < lastT) throw invalidArgument('t', `finite time >= ${lastT}`, t);
-      if (!bg || !prev) {
-        bg = startBackground(frame);
+      if (!prev) {
+        offerFrame(history, frame, t);
         prev = frame;
         lastT = t;
         recent.push([]);
-        return { t, score: 0, blobs: [] };
+        return { t, score: 0, blobs: [], tracks: [] };
       }
-      const bgFrame = backgroundToFrame(bg, frame);
+      const bgFrame = history.background!;
       const norm = applyGainOffset(frame, fitGainOffset(bgFrame, frame, mask));
       const a = toSnr(maxChannelChange(norm, bgFrame), params.minNoise, mask, o.restless);
       const b = toSnr(maxChannelChange(norm, prev), params.minNoise, mask, o.restless);
@@ -66,7 +69,7 @@ export function createClipAnalyser(o: ClipOptions): ClipAnalyser {
       const m = close3x3(open3x3(orMask(thresholdHysteresis(a.snr, lo, hi), thresholdHysteresis(b.snr, lo, hi))));
       const minArea = Math.max(4, Math.round(params.minBlobFraction * frame.width * frame.height));
       const blobs = labelComponents(m, maxImage(a.snr, b.snr)).blobs.filter((x) => x.area >= minArea);
-      updateBackground(bg, norm, learningRate(t - lastT, params.backgroundSeconds));
+      offerFrame(history, norm, t);
       prev = norm;
       lastT = t;
       recent.push(blobs);
@@ -88,13 +91,18 @@ export function createClipAnalyser(o: ClipOptions): ClipAnalyser {
       };
       const total = tracks.reduce((s, tr) => s + tr.points.reduce((q, p) => q + p.blob.area, 0), 0);
       let score = 0;
+      const scored: FrameActivity['tracks'] = [];
       for (const tr of tracks) {
-        if (tr.points[tr.points.length - 1].frame !== recent.length - 1) continue;
+        const last = tr.points[tr.points.length - 1];
+        if (last.frame !== recent.length - 1) continue;
         const area = tr.points.reduce((q, p) => q + p.blob.area, 0);
         const f = trackFeatures(tr, recent.length, frame.width, frame.height, SNR_SCALE);
-        score = Math.max(score, trackScore(o.model, featureVector(f, ctx, total ? area / total : 0)));
+        const row = featureVector(f, ctx, total ? area / total : 0);
+        const s = trackScore(o.model, row);
+        scored.push({ row, blob: last.blob, score: s });
+        score = Math.max(score, s);
       }
-      return { t, score, blobs };
+      return { t, score, blobs, tracks: scored };
     },
   };
 }

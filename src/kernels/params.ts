@@ -18,6 +18,9 @@ export interface EngineParams {
   alignMinConfidence: number;
   /** Video: memory of the running background, seconds. */
   backgroundSeconds: number;
+  /** Video: the median background's window (s) and how many frames it samples over it. */
+  historySeconds: number;
+  historySamples: number;
 }
 
 export const DEFAULT_PARAMS: EngineParams = {
@@ -27,6 +30,10 @@ export const DEFAULT_PARAMS: EngineParams = {
   minBlobFraction: 0.0002,
   alignMinConfidence: 0.15,
   backgroundSeconds: 8,
+  // One sample every 2 s over the last minute: a fish visit of under 30 s never becomes the
+  // background; slow light changes and drifting sediment do. Our choice, fitted against nothing.
+  historySeconds: 60,
+  historySamples: 31,
 };
 
 /** SNR images store round(SNR_SCALE * change / sigma) in uint8: 0.1 sigma steps to 25.5 sigma. */
@@ -40,5 +47,7 @@ export function checkParams(p: Partial<EngineParams>): EngineParams {
   checkNumber('minBlobFraction', q.minBlobFraction, 0, 0.5);
   checkNumber('alignMinConfidence', q.alignMinConfidence, 0, 1);
   checkNumber('backgroundSeconds', q.backgroundSeconds, 0.1, 3600);
+  checkNumber('historySeconds', q.historySeconds, 0.1, 86_400);
+  checkNumber('historySamples', q.historySamples, 1, 255);
   return q;
 }

@@ -27,7 +27,7 @@ export const FEATURE_NAMES = [
 ] as const;
 
 export interface MotionModel {
-  schema: 'movesift.motion-model/1';
+  schema: 'movesift.motion-model/1' | 'movesift.clip-model/1';
   /** Raw feature names; the model works on their quadratic expansion (see expandFeatures). */
   features: readonly string[];
   mean: number[];

@@ -4,13 +4,13 @@
  * in-process or in a worker thread. A frame that fails to decode is reported and the rest of
  * the event is still analysed.
  */
-import { activityWindows, type ActivityWindow } from '../kernels/activity-windows.js';
+import { activityWindows, runningMedian, type ActivityWindow } from '../kernels/activity-windows.js';
 import { analyseEvent } from '../kernels/analyse-event.js';
 import { createClipAnalyser } from '../kernels/clip-activity.js';
 import type { Blob } from '../kernels/components.js';
 import { detectDataStripInFrames, ignoreMask } from '../kernels/data-strip.js';
 import type { RgbFrame } from '../kernels/frame.js';
-import { MOTION_MODEL } from '../kernels/model.js';
+import { CLIP_MODEL, MOTION_MODEL } from '../kernels/model.js';
 import { eventFeatureRows, scoreEvent, verdictFor, FEATURE_NAMES, type VerdictName } from '../kernels/score.js';
 import { temporalMedian } from '../kernels/temporal-median.js';
 import { decodeImage } from '../media/decode-image.js';
@@ -143,7 +143,7 @@ async function runImages(task: EventTask): Promise<TaskOutcome> {
 
 async function runClip(task: EventTask): Promise<TaskOutcome> {
   const file = task.files[0];
-  const analyser = createClipAnalyser({ model: MOTION_MODEL });
+  const analyser = createClipAnalyser({ model: CLIP_MODEL });
   const times: number[] = [];
   const scores: number[] = [];
   const bucketS = 5;
@@ -156,7 +156,7 @@ async function runClip(task: EventTask): Promise<TaskOutcome> {
       times.push(t);
       scores.push(r.score);
       if (!first) first = frame;
-      if (r.score >= MOTION_MODEL.thresholds.blank) {
+      if (r.score >= CLIP_MODEL.thresholds.blank) {
         const b = Math.floor(t / bucketS);
         const c = candidates.get(b);
         if (!c || r.score > c.score) candidates.set(b, { t, score: r.score, frame, blobs: r.blobs });
@@ -170,8 +170,15 @@ async function runClip(task: EventTask): Promise<TaskOutcome> {
   const problem = stream.problem();
   const end = times[times.length - 1] ?? 0;
   if (problem) failures.push({ display: file.display, code: MediaErrorCode.videoDecode, message: `${file.display}: decoding stopped early at ${end.toFixed(1)} s (${problem}); the part before it was screened`, stage: 'partial' });
-  const windows = activityWindows(times, scores, { threshold: MOTION_MODEL.thresholds.blank, durationS: end });
-  const score = scores.reduce((m, v) => Math.max(m, v), 0);
+  const windows = activityWindows(times, scores, { threshold: CLIP_MODEL.thresholds.blank, durationS: end, ...CLIP_MODEL.window });
+  // The clip's score is the highest level its windows are built from (the smoothed frame
+  // scores), so a clip is likely-blank exactly when it has no window. One frame that alone
+  // reached the motion level still makes it unsure: a missed fish costs more than a look.
+  const level = runningMedian(scores, CLIP_MODEL.window.smoothFrames);
+  const score = level.reduce((m, v) => Math.max(m, v), 0);
+  const rawPeak = scores.reduce((m, v) => Math.max(m, v), 0);
+  let verdict = verdictFor(CLIP_MODEL, score);
+  if (verdict === 'likely-blank' && rawPeak >= CLIP_MODEL.thresholds.motion) verdict = 'unsure';
   const previews: PreviewFile[] = [await writeFramePreview(task.cacheDir, task.eventId, 0, first, 0)];
   const picks = windows.slice(0, 12).map((w) => {
     let bestC: { t: number; score: number; frame: RgbFrame; blobs: Blob[] } | undefined;
@@ -186,8 +193,8 @@ async function runClip(task: EventTask): Promise<TaskOutcome> {
     ok: true,
     eventId: task.eventId,
     score,
-    verdict: verdictFor(MOTION_MODEL, score),
-    features: { frames: times.length, durationS: round(end, 2) },
+    verdict,
+    features: { frames: times.length, durationS: round(end, 2), rawPeak: round(rawPeak, 4) },
     detail: { times: times.map((t) => round(t, 2)), scores: scores.map((v) => round(v, 3)) },
     windows: windows.map((w) => ({ start_s: round(w.start_s, 2), end_s: round(w.end_s, 2), score: round(w.score, 4) })),
     previews,

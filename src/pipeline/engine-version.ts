@@ -4,13 +4,13 @@
  * only when both, and its inputs' fingerprints, are unchanged.
  */
 import { createHash } from 'node:crypto';
-import { MOTION_MODEL } from '../kernels/model.js';
+import { CLIP_MODEL, MOTION_MODEL } from '../kernels/model.js';
 import { DEFAULT_PARAMS } from '../kernels/params.js';
 import pkg from '../../package.json' with { type: 'json' };
 
 const sha = (s: string): string => createHash('sha256').update(s).digest('hex');
 
-export const MODEL_HASH = sha(JSON.stringify(MOTION_MODEL)).slice(0, 10);
+export const MODEL_HASH = sha(JSON.stringify([MOTION_MODEL, CLIP_MODEL])).slice(0, 10);
 export const ENGINE_VERSION = `${pkg.version}+${MODEL_HASH}`;
 
 export interface AnalysisSettings {

@@ -109,7 +109,7 @@ interface Streak {
   bright: number;
 }
 
-interface Renderer {
+export interface Renderer {
   world: World;
   effects: Effects;
   subject?: Subject;
@@ -123,7 +123,7 @@ interface Renderer {
   duration: number;
 }
 
-function makeRenderer(rng: Rng, category: CategoryName, light: Light, width: number, height: number, duration: number, worldRng: Rng = rng): Renderer {
+export function makeRenderer(rng: Rng, category: CategoryName, light: Light, width: number, height: number, duration: number, worldRng: Rng = rng): Renderer {
   const world = makeWorld(worldRng, width, height, light);
   const effects = plan(rng, category, light);
   let subject: Subject | undefined;
@@ -163,7 +163,7 @@ function makeRenderer(rng: Rng, category: CategoryName, light: Light, width: num
   };
 }
 
-function renderFrame(r: Renderer, t: number, showSubject: boolean, frameRng: Rng, subjectT = t): { frame: RgbFrame; mask: Uint8Array } {
+export function renderFrame(r: Renderer, t: number, showSubject: boolean, frameRng: Rng, subjectT = t): { frame: RgbFrame; mask: Uint8Array } {
   const { world, effects: e } = r;
   const { width: w, height: h, margin } = world;
   const frame = makeRgb(w, h);
@@ -306,49 +306,3 @@ export function renderScene(req: SceneRequest): Scene {
   return { seed: req.seed, category: req.category, light, animal, width, height, times, frames, subjectMasks, neighbours };
 }
 
-export interface Clip {
-  seed: number;
-  fps: number;
-  width: number;
-  height: number;
-  times: number[];
-  frames: RgbFrame[];
-  /** Ground truth per frame: the subject covers at least `minPixels` pixels. */
-  present: boolean[];
-  /** Ground truth spans (s) where the subject is in view, from `present`. */
-  windows: Array<{ start_s: number; end_s: number }>;
-}
-
-/** A survey clip: nuisances throughout and a subject visiting during the requested `visits`. */
-export function renderClip(req: { seed: number; width: number; height: number; fps: number; duration: number; visits: Array<{ start_s: number; end_s: number }>; category?: CategoryName }): Clip {
-  const rng = makeRng(req.seed * 104729 + 3);
-  const category = req.category ?? Category.fishCrossing;
-  const light: Light = isUnderwater(category) ? 'water' : 'day';
-  const frameRng = makeRng(req.seed * 13 + 1);
-  const base = makeRenderer(rng, category, light, req.width, req.height, req.duration);
-  // One subject per visit, each crossing during its own span; world and nuisances are shared.
-  const visits = req.visits.map((v) => ({ v, r: makeRenderer(makeRng(rng.int(1, 1e9)), category, light, req.width, req.height, v.end_s - v.start_s) }));
-  const minPixels = Math.max(4, Math.round(req.width * req.height * 0.001));
-  const times: number[] = [];
-  const frames: RgbFrame[] = [];
-  const present: boolean[] = [];
-  for (let i = 0; i / req.fps < req.duration; i++) {
-    const t = i / req.fps;
-    const visit = visits.find((x) => t >= x.v.start_s && t <= x.v.end_s);
-    const r = visit ? { ...base, subject: visit.r.subject } : base;
-    const { frame, mask } = renderFrame(r, t, !!visit, frameRng, visit ? t - visit.v.start_s : t);
-    let n = 0;
-    for (const m of mask) n += m;
-    times.push(t);
-    frames.push(frame);
-    present.push(n >= minPixels);
-  }
-  const windows: Clip['windows'] = [];
-  for (let i = 0; i < present.length; i++) {
-    if (!present[i]) continue;
-    const last = windows[windows.length - 1];
-    if (last && i > 0 && present[i - 1]) last.end_s = times[i];
-    else windows.push({ start_s: times[i], end_s: times[i] });
-  }
-  return { seed: req.seed, fps: req.fps, width: req.width, height: req.height, times, frames, present, windows };
-}
