@@ -2,7 +2,7 @@
  * Fits the clip model: the track-feature logistic model refitted on generated survey clips (the
  * streaming chain sees a running background and a sliding window of frames, not a burst), and
  * the activity-window settings chosen from out-of-fold scores. Run: npm run fit:clips (writes
- * models/clip-weights.json and models/clip-fit-data.csv). Renders in two processes.
+ * models/clip-weights.json and models/clip-fit-data.csv). Renders in one process per core.
  *
  * Window settings, derived from the fit clips, never tuned by hand: for each running-median
  * width (1, 3, 5, 7 frames) and each threshold on a grid, windows are built exactly as a scan
@@ -10,13 +10,13 @@
  * the one that drops the most subject-free frames while its windows still hold at least 99% of
  * the frames with a subject in view, scored out of fold (two folds by seed parity).
  */
-import { spawn } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import { activityWindows } from '../src/kernels/activity-windows.js';
 import { MOTION_MODEL } from '../src/kernels/model.js';
 import { expandFeatures, FEATURE_NAMES, trackScore, type MotionModel } from '../src/kernels/score.js';
 import { fitLogistic } from './logistic.js';
+import { inParts } from './parts.js';
 import { CLIP_FIT_SEEDS, clipPlan } from './scenes/clip-plans.js';
 import { runClipPlan, type ClipRecord } from './scenes/clip-run.js';
 
@@ -26,30 +26,12 @@ const COVER = 0.99;
 const ROLL = { preRollS: 1, postRollS: 2, mergeGapS: 3 };
 const seeds = Array.from({ length: CLIP_FIT_SEEDS.count }, (_, i) => CLIP_FIT_SEEDS.first + i);
 
-const part = process.argv.indexOf('--part');
-if (part > 0) {
-  // Child: render and analyse every n-th clip, print the records as JSON.
-  const [i, n] = process.argv[part + 1].split('/').map(Number);
+const started = Date.now();
+const clips = await inParts<ClipRecord>(import.meta.filename, async (i, n) => {
   const out: ClipRecord[] = [];
   for (const s of seeds.filter((_, k) => k % n === i)) out.push(await runClipPlan(clipPlan(s), MOTION_MODEL));
-  fs.writeFileSync(process.argv[part + 2], JSON.stringify(out));
-  process.exit(0);
-}
-
-const started = Date.now();
-const tmp = fs.mkdtempSync(path.join(ROOT, 'tmp-clipfit-'));
-const n = 2;
-await Promise.all(
-  Array.from({ length: n }, (_, i) =>
-    new Promise<void>((res, rej) => {
-      const c = spawn(process.execPath, [path.join(ROOT, 'node_modules/tsx/dist/cli.mjs'), import.meta.filename, '--part', `${i}/${n}`, path.join(tmp, `${i}.json`)], { stdio: 'inherit' });
-      c.on('exit', (code) => (code === 0 ? res() : rej(new Error(`part ${i} exited ${code}`))));
-    }),
-  ),
-);
-const clips: ClipRecord[] = [];
-for (let i = 0; i < n; i++) clips.push(...(JSON.parse(fs.readFileSync(path.join(tmp, `${i}.json`), 'utf8')) as ClipRecord[]));
-fs.rmSync(tmp, { recursive: true });
+  return out;
+});
 clips.sort((a, b) => a.seed - b.seed);
 
 const lo = FEATURE_NAMES.map(() => Infinity);

@@ -11,48 +11,44 @@
  */
 import fs from 'node:fs';
 import path from 'node:path';
-import { expandFeatures, FEATURE_NAMES, scoreEvent, type MotionModel } from '../src/kernels/score.js';
+import { expandFeatures, FEATURE_NAMES, type MotionModel } from '../src/kernels/score.js';
 import { ALL_CATEGORIES } from './scenes/categories.js';
-import { runScenes, sceneRequests } from './scenes/evaluate.js';
+import { sceneRequests } from './scenes/evaluate.js';
+import { recordScore, sceneRecord, type SceneRecord } from './scenes/scene-record.js';
 import { FIT_SEEDS } from './scenes/seeds.js';
 import { fitLogistic } from './logistic.js';
+import { inParts } from './parts.js';
 
 const started = Date.now();
-const events = runScenes(sceneRequests(FIT_SEEDS.first, FIT_SEEDS.perCategory, ALL_CATEGORIES));
-const rows: number[][] = [];
-const labels: number[] = [];
+const requests = sceneRequests(FIT_SEEDS.first, FIT_SEEDS.perCategory, ALL_CATEGORIES);
+const events = (await inParts<SceneRecord>(import.meta.filename, async (i, n) => requests.filter((_, k) => k % n === i).map(sceneRecord))).sort((a, b) => a.seed - b.seed);
 const lo = FEATURE_NAMES.map(() => Infinity);
 const hi = FEATURE_NAMES.map(() => -Infinity);
 for (const e of events) for (const r of e.rows) r.forEach((v, j) => ((lo[j] = Math.min(lo[j], v)), (hi[j] = Math.max(hi[j], v))));
 const range = { lo, hi };
-for (const e of events) {
-  e.rows.forEach((r, i) => {
-    rows.push(expandFeatures(r.map((v, j) => Math.min(hi[j], Math.max(lo[j], v)))));
-    labels.push(e.labels[i]);
-  });
-}
-const pos = labels.filter((l) => l === 1).length;
-const neg = labels.length - pos;
-// Balance the classes: each side carries equal total weight.
-const weights = labels.map((l) => (l === 1 ? labels.length / (2 * pos) : labels.length / (2 * neg)));
 // L2 penalty on standardised weights. Small penalties fit the seeds best in-sample but let the
-// 77 quadratic terms extrapolate (a large, clear animal once scored near 0 out of fold at 0.3).
+// quadratic terms extrapolate (a large, clear animal once scored near 0 out of fold at 0.3).
 const LAMBDA = 3;
-const fit = fitLogistic(rows, labels, weights, LAMBDA);
+function train(subset: SceneRecord[]): MotionModel {
+  const rows: number[][] = [];
+  const labels: number[] = [];
+  for (const e of subset) e.rows.forEach((r, i) => (rows.push(expandFeatures(r.map((v, j) => Math.min(hi[j], Math.max(lo[j], v))))), labels.push(e.labels[i])));
+  const pos = labels.filter((l) => l === 1).length;
+  // Balance the classes: each side carries equal total weight.
+  const w = labels.map((l) => (l === 1 ? labels.length / (2 * pos) : labels.length / (2 * (labels.length - pos))));
+  return { schema: 'movesift.motion-model/1', features: FEATURE_NAMES, ...fitLogistic(rows, labels, w, LAMBDA), thresholds: { blank: 0, motion: 1 }, range };
+}
+const fit = train(events);
+const rows = { length: events.reduce((a, e) => a + e.rows.length, 0) };
+const pos = events.reduce((a, e) => a + e.labels.filter((l) => l === 1).length, 0);
 // Out-of-fold scores: fold = seed parity.
 const oof = new Map<number, number>();
 for (const fold of [0, 1]) {
-  const idx: number[] = [];
-  let k = 0;
-  for (const e of events) e.rows.forEach(() => (e.seed % 2 !== fold ? idx.push(k++) : k++));
-  const pf = idx.filter((i) => labels[i] === 1).length;
-  const wf = idx.map((i) => (labels[i] === 1 ? idx.length / (2 * pf) : idx.length / (2 * (idx.length - pf))));
-  const f = fitLogistic(idx.map((i) => rows[i]), idx.map((i) => labels[i]), wf, LAMBDA);
-  const m: MotionModel = { schema: 'movesift.motion-model/1', features: FEATURE_NAMES, ...f, thresholds: { blank: 0, motion: 1 }, range };
-  for (const e of events) if (e.seed % 2 === fold) oof.set(e.seed, scoreEvent(m, e.analysis).score);
+  const m = train(events.filter((e) => e.seed % 2 !== fold));
+  for (const e of events) if (e.seed % 2 === fold) oof.set(e.seed, recordScore(m, e).score);
 }
-const draft: MotionModel = { schema: 'movesift.motion-model/1', features: FEATURE_NAMES, ...fit, thresholds: { blank: 0, motion: 1 }, range };
-const scored = events.map((e) => ({ e, s: scoreEvent(draft, e.analysis).score }));
+const draft: MotionModel = { ...fit };
+const scored = events.map((e) => ({ e, s: recordScore(draft, e).score }));
 const animalScores = events.filter((e) => e.animal).map((e) => oof.get(e.seed)!).sort((a, b) => a - b);
 const blank = animalScores[0] / 2;
 const byScore = [...scored].sort((a, b) => b.s - a.s);
@@ -90,11 +86,11 @@ const model = {
     seconds: Math.round((Date.now() - started) / 1000),
   },
 };
-const root = path.resolve(path.dirname(new URL(import.meta.url).pathname), '..');
+const root = path.resolve(import.meta.dirname, '..');
 fs.mkdirSync(path.join(root, 'models'), { recursive: true });
 fs.writeFileSync(path.join(root, 'models/motion-weights.json'), JSON.stringify(model, null, 2) + '\n');
 const csv = ['seed,category,frames,label,' + FEATURE_NAMES.join(',')];
 for (const e of events) e.rows.forEach((r, i) => csv.push([e.seed, e.category, e.frames, e.labels[i], ...r.map((v) => v.toFixed(5))].join(',')));
 fs.writeFileSync(path.join(root, 'models/motion-fit-data.csv'), csv.join('\n') + '\n');
 console.table(model.fit.metrics);
-console.log({ blank, motion, linearWeights: Object.fromEntries(FEATURE_NAMES.map((n, i) => [n, +fit.weights[i].toFixed(3)])) });
+console.log({ blank, motion, seconds: model.fit.seconds, linearWeights: Object.fromEntries(FEATURE_NAMES.map((n, i) => [n, +fit.weights[i].toFixed(3)])) });

@@ -8,6 +8,7 @@
 import { invalidArgument, notEnoughFrames } from '../shared/errors.js';
 import { maxChannelChange } from './change-image.js';
 import { labelComponents, type Blob } from './components.js';
+import { unexplainedShare } from './explained-change.js';
 import { checkFrame, checkSameShape, makeGrey, type GreyFrame, type RgbFrame } from './frame.js';
 import { toLuma } from './luma.js';
 import { close3x3, open3x3 } from './morphology.js';
@@ -178,6 +179,9 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     mask = close3x3(open3x3(mask));
     const comps = labelComponents(mask, snr);
     const blobs = comps.blobs.filter((b) => b.area >= minArea);
+    // What the scene could explain, judged against the reference the change was first taken from.
+    const ref = background ?? deployment ?? work[k > 0 ? k - 1 : 1];
+    for (const b of blobs) b.unexplained = unexplainedShare(work[k], ref, comps.labels, b, parts[0].sigma);
     let active = 0;
     for (const b of blobs) active += b.area;
     for (let i = 0; i < snr.data.length; i++) {

@@ -7,12 +7,13 @@
  */
 import { maxChannelChange } from './change-image.js';
 import { labelComponents, type Blob } from './components.js';
+import { unexplainedShare } from './explained-change.js';
 import { checkFrame, type GreyFrame, type RgbFrame } from './frame.js';
 import { close3x3, open3x3 } from './morphology.js';
 import { checkParams, SNR_SCALE, type EngineParams } from './params.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
 import { createMedianHistory, offerFrame } from './median-history.js';
-import { featureVector, trackScore, type MotionModel } from './score.js';
+import { trackRows, trackScore, type MotionModel } from './score.js';
 import { maxImage, orMask, toSnr } from './snr-image.js';
 import { thresholdHysteresis } from './threshold.js';
 import { linkTracks, trackFeatures } from './tracks.js';
@@ -68,7 +69,10 @@ export function createClipAnalyser(o: ClipOptions): ClipAnalyser {
       const lo = params.growSigmas * SNR_SCALE;
       const m = close3x3(open3x3(orMask(thresholdHysteresis(a.snr, lo, hi), thresholdHysteresis(b.snr, lo, hi))));
       const minArea = Math.max(4, Math.round(params.minBlobFraction * frame.width * frame.height));
-      const blobs = labelComponents(m, maxImage(a.snr, b.snr)).blobs.filter((x) => x.area >= minArea);
+      const snr = maxImage(a.snr, b.snr);
+      const comps = labelComponents(m, snr);
+      const blobs = comps.blobs.filter((x) => x.area >= minArea);
+      for (const x of blobs) x.unexplained = unexplainedShare(norm, bgFrame, comps.labels, x, a.sigma);
       offerFrame(history, norm, t);
       prev = norm;
       lastT = t;
@@ -89,19 +93,16 @@ export function createClipAnalyser(o: ClipOptions): ClipAnalyser {
         maxGainStep: 0,
         noReference: false,
       };
-      const total = tracks.reduce((s, tr) => s + tr.points.reduce((q, p) => q + p.blob.area, 0), 0);
+      const rows = trackRows(tracks.map((tr) => trackFeatures(tr, recent.length, frame.width, frame.height, SNR_SCALE)), tracks, ctx);
       let score = 0;
       const scored: FrameActivity['tracks'] = [];
-      for (const tr of tracks) {
+      tracks.forEach((tr, i) => {
         const last = tr.points[tr.points.length - 1];
-        if (last.frame !== recent.length - 1) continue;
-        const area = tr.points.reduce((q, p) => q + p.blob.area, 0);
-        const f = trackFeatures(tr, recent.length, frame.width, frame.height, SNR_SCALE);
-        const row = featureVector(f, ctx, total ? area / total : 0);
-        const s = trackScore(o.model, row);
-        scored.push({ row, blob: last.blob, score: s });
+        if (last.frame !== recent.length - 1) return;
+        const s = trackScore(o.model, rows[i]);
+        scored.push({ row: rows[i], blob: last.blob, score: s });
         score = Math.max(score, s);
-      }
+      });
       return { t, score, blobs, tracks: scored };
     },
   };

@@ -18,6 +18,9 @@ export interface Blob {
   /** Mean and peak of the change image over the blob's pixels (0 when no change image given). */
   meanChange: number;
   peakChange: number;
+  /** Share of the blob's pixels that neither a small local shift nor a local light change of the
+   *  reference explains (explained-change.ts); set by the event and clip chains. */
+  unexplained?: number;
 }
 
 export interface Components {

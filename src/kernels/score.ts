@@ -24,6 +24,7 @@ export const FEATURE_NAMES = [
   'logActiveFraction',
   'logBlobsPerFrame',
   'trackShare',
+  'unexplained',
 ] as const;
 
 export interface MotionModel {
@@ -54,16 +55,23 @@ export function featureVector(t: TrackFeatures, ctx: EventContext, trackShare: n
     Math.log10(ctx.activeFraction + 1e-5),
     Math.log1p(ctx.blobsPerFrame),
     trackShare,
+    t.unexplained,
   ];
+}
+
+/**
+ * Feature rows of a set of tracks seen together (an event, or a clip's recent frames); the share
+ * of all tracked change that each track holds needs the others.
+ */
+export function trackRows(feats: readonly TrackFeatures[], tracks: ReadonlyArray<{ points: ReadonlyArray<{ blob: { area: number } }> }>, ctx: EventContext): number[][] {
+  const areas = tracks.map((t) => t.points.reduce((q, p) => q + p.blob.area, 0));
+  const total = areas.reduce((a, b) => a + b, 0);
+  return feats.map((f, i) => featureVector(f, ctx, total > 0 ? areas[i] / total : 0));
 }
 
 /** Feature vectors of every track of an analysed event (rows in track order). */
 export function eventFeatureRows(a: EventAnalysis): number[][] {
-  const total = a.tracks.reduce((s, t) => s + t.points.reduce((q, p) => q + p.blob.area, 0), 0);
-  return a.tracks.map((t, i) => {
-    const area = t.points.reduce((q, p) => q + p.blob.area, 0);
-    return featureVector(a.trackFeatures[i], a.context, total > 0 ? area / total : 0);
-  });
+  return trackRows(a.trackFeatures, a.tracks, a.context);
 }
 
 /**
@@ -104,14 +112,18 @@ export function verdictFor(model: MotionModel, score: number): VerdictName {
 }
 
 export function scoreEvent(model: MotionModel, a: EventAnalysis): EventScore {
-  const rows = eventFeatureRows(a);
-  const trackScores = rows.map((r) => trackScore(model, r));
+  return scoreEventRows(model, eventFeatureRows(a), a.context.noReference);
+}
+
+/** The same from an event's feature rows (what the fitting tools keep of an analysis). */
+export function scoreEventRows(model: MotionModel, rows: readonly number[][], noReference: boolean): EventScore {
+  const trackScores = rows.map((r) => trackScore(model, [...r]));
   let best = -1;
   trackScores.forEach((s, i) => {
     if (best < 0 || s > trackScores[best]) best = i;
   });
   const score = best < 0 ? 0 : trackScores[best];
   // Without a reference the pixels cannot show motion: never call such an image blank.
-  const verdict = a.context.noReference ? Verdict.unsure : verdictFor(model, score);
+  const verdict = noReference ? Verdict.unsure : verdictFor(model, score);
   return { score, verdict, bestTrack: best, trackScores };
 }

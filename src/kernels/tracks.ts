@@ -38,6 +38,8 @@ export interface TrackFeatures {
   peakSnr: number;
   /** Mean fill of the blob's box (area / box area). */
   fill: number;
+  /** Mean share of the blobs' pixels the scene cannot explain by a small shift or a light change. */
+  unexplained: number;
 }
 
 function boxesTouch(a: Blob, b: Blob): boolean {
@@ -102,5 +104,6 @@ export function trackFeatures(track: Track, frameCount: number, width: number, h
     meanSnr: pts.reduce((a, p) => a + p.blob.meanChange, 0) / pts.length / snrScale,
     peakSnr: Math.max(...pts.map((p) => p.blob.peakChange)) / snrScale,
     fill: pts.reduce((a, p) => a + p.blob.area / (p.blob.width * p.blob.height), 0) / pts.length,
+    unexplained: pts.reduce((a, p) => a + (p.blob.unexplained ?? 1), 0) / pts.length,
   };
 }

@@ -117,13 +117,21 @@ describe('review app in Chromium', () => {
   });
 
   it('applies a decision and an undo typed back to back in key order', async () => {
+    await page.keyboard.press('d'); // decision filter: undecided
+    await until('the undecided filter', async () => (await page.locator('[data-chip=decision] b').textContent()) === 'undecided' && (await page.locator('.card[data-event]').count()) > 0);
+    await page.keyboard.press('Home');
+    await until('the cursor on an undecided event', async () => (await page.locator('.card.is-focused').getAttribute('data-decision')) === 'none');
     const target = await page.locator('.card.is-focused').getAttribute('data-event');
     expect(latest().get(target!) ?? null).toBeNull();
+    const count = () => ledgerRows<{ n: number }>('SELECT count(*) AS n FROM decisions WHERE event_id = ?', target)[0].n;
+    const before = count();
     await page.keyboard.press('k');
     await page.keyboard.press('u'); // no wait: the undo must not overtake the keep
-    await until('both writes', async () => ledgerRows<{ n: number }>('SELECT count(*) AS n FROM decisions WHERE event_id = ?', target)[0].n === 2);
-    const rows = ledgerRows<{ decision: string | null; source: string }>('SELECT decision, source FROM decisions WHERE event_id = ? ORDER BY id', target);
+    await until('both writes', async () => count() === before + 2);
+    const rows = ledgerRows<{ decision: string | null; source: string }>('SELECT decision, source FROM decisions WHERE event_id = ? ORDER BY id DESC LIMIT 2', target).reverse();
     expect(rows).toEqual([{ decision: 'keep', source: 'single' }, { decision: null, source: 'undo' }]);
+    for (let i = 0; i < 3; i++) await page.keyboard.press('d'); // back to any decision
+    await until('every decision', async () => (await page.locator('[data-chip=decision] b').textContent()) === 'any');
   });
 
   it('flips a burst frame by frame with its overlay', async () => {

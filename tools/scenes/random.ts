@@ -1,4 +1,6 @@
 /** Seeded pseudo-random numbers (mulberry32): the same seed renders the same scene everywhere. */
+import { mulberry32 } from '../../src/shared/stats/seeded-random.js';
+
 export interface Rng {
   next(): number;
   range(lo: number, hi: number): number;
@@ -9,14 +11,7 @@ export interface Rng {
 }
 
 export function makeRng(seed: number): Rng {
-  let s = seed >>> 0 || 0x9e3779b9;
-  const next = (): number => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  const next = mulberry32(seed);
   let spare: number | null = null;
   return {
     next,

@@ -1,0 +1,26 @@
+/**
+ * A generated scene reduced to what fitting and judging the burst model need, as plain JSON:
+ * the feature row and ground-truth label of every track, and whether the event had a
+ * reference to compare against. Lets the scene work run in several processes.
+ */
+import { scoreEventRows, type MotionModel } from '../../src/kernels/score.js';
+import type { CategoryName } from './categories.js';
+import { analyseScene } from './evaluate.js';
+import { renderScene, type SceneRequest } from './render.js';
+
+export interface SceneRecord {
+  seed: number;
+  category: CategoryName;
+  animal: boolean;
+  frames: number;
+  rows: number[][];
+  labels: number[];
+  noReference: boolean;
+}
+
+export function sceneRecord(req: SceneRequest): SceneRecord {
+  const e = analyseScene(renderScene(req));
+  return { seed: e.seed, category: e.category, animal: e.animal, frames: e.frames, rows: e.rows, labels: e.labels, noReference: e.analysis.context.noReference };
+}
+
+export const recordScore = (m: MotionModel, r: SceneRecord) => scoreEventRows(m, r.rows, r.noReference);
