@@ -8,6 +8,11 @@ import { scanCommand } from './scan-command.js';
 import { reportCommand } from './report-command.js';
 import { decideCommand } from './decide-command.js';
 import { reviewCommand } from './review-command.js';
+import { applyCommand, undoCommand } from './apply-command.js';
+import { auditCommand } from './audit-command.js';
+import { exportCommand } from './export-command.js';
+import { calibrateCommand } from './calibrate-command.js';
+import { cutCommand } from './cut-command.js';
 
 const HELP = `Usage: movesift <command> [options]
 
@@ -18,10 +23,16 @@ Commands:
   report <ledger> [--format json|csv]  print the screening result
   review [<ledger>]                    the review app in your browser (keyboard-driven)
   decide <ledger> --keep|--set-aside   record decisions for events matching filters
+  apply <ledger> --to <folder>         move set-aside media into a set-aside folder (verified, undoable)
+  undo <ledger> [--apply <id>]         put moved media back
+  audit <ledger> --sample <n>          check set-aside events by a random sample: miss-rate interval
+  export <ledger> --format csv|camtrap-dp --out <path>   the result as CSV or a Camtrap DP package
+  calibrate <ledger> --recall 0.99     the likely-blank threshold from people's labels
+  cut <ledger> --out <folder>          each clip's activity windows as separate files, with a MaxN sheet
 
 Run \`movesift <command> --help\` for a command's options.`;
 
-const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand, review: reviewCommand, decide: decideCommand };
+const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand, review: reviewCommand, decide: decideCommand, apply: applyCommand, undo: undoCommand, audit: auditCommand, export: exportCommand, calibrate: calibrateCommand, cut: cutCommand };
 
 export async function main(argv: string[]): Promise<number> {
   const [cmd, ...rest] = argv;

@@ -115,6 +115,11 @@ export function createScanStore(db: Ledger) {
     verdictCounts: db.prepare<[], { verdict: string; n: number }>('SELECT verdict, count(*) AS n FROM analyses GROUP BY verdict'),
     errorCount: db.prepare<[], { n: number }>('SELECT count(*) AS n FROM scan_errors'),
     deploymentsOfRoot: db.prepare<[number], { id: string }>('SELECT id FROM deployments WHERE root_id = ?'),
+    // Media an apply moved into a set-aside folder (and no undo brought back): still the
+    // ledger's, though a scan of the root no longer finds them.
+    movedAway: db.prepare<[number], MediaRow & { id: number }>(
+      "SELECT m.* FROM media m WHERE m.root_id = ? AND (SELECT mv.state || ':' || coalesce(mv.method, '') FROM moves mv WHERE mv.media_id = m.id ORDER BY mv.id DESC LIMIT 1) IN ('moved:rename', 'moved:copy')",
+    ),
   };
 
   return {
@@ -177,6 +182,7 @@ export function createScanStore(db: Ledger) {
     verdictCounts: () => s.verdictCounts.all(),
     errorCount: () => s.errorCount.get()!.n,
     deploymentsOfRoot: (rootId: number) => s.deploymentsOfRoot.all(rootId).map((r) => r.id),
+    movedAway: (rootId: number) => s.movedAway.all(rootId),
     endScan: (id: number, status: 'done' | 'stopped' | 'failed') => void s.endScan.run(now(), status, id),
   };
 }

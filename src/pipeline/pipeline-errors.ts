@@ -4,6 +4,15 @@ import { MovesiftError } from '../shared/errors.js';
 export const PipelineErrorCode = {
   badDeploymentsTable: 'E_DEPLOYMENTS_TABLE',
   stopped: 'E_SCAN_STOPPED',
+  nameClash: 'E_APPLY_NAME_CLASH',
+  diskFull: 'E_APPLY_DISK_FULL',
+  verifyFailed: 'E_APPLY_VERIFY_FAILED',
+  sourceChanged: 'E_APPLY_SOURCE_CHANGED',
+  sourceMissing: 'E_APPLY_SOURCE_MISSING',
+  targetInsideRoot: 'E_APPLY_TARGET_INSIDE_ROOT',
+  undoHashMismatch: 'E_UNDO_HASH_MISMATCH',
+  undoMissing: 'E_UNDO_FILE_MISSING',
+  unknownApply: 'E_UNKNOWN_APPLY',
 } as const;
 
 export type PipelineErrorCodeValue = (typeof PipelineErrorCode)[keyof typeof PipelineErrorCode];

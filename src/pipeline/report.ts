@@ -58,6 +58,12 @@ export function buildReport(ledger: string): Report {
 export function csvCell(v: unknown): string {
   let s = v === null || v === undefined ? '' : String(v);
   if (/^[=+\-@\t\r]/.test(s)) s = `'${s}`;
+  return rawCsvCell(s);
+}
+
+/** RFC 4180 quoting only, values untouched: for data packages read by programs, not spreadsheets. */
+export function rawCsvCell(v: unknown): string {
+  const s = v === null || v === undefined ? '' : String(v);
   return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 

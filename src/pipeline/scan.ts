@@ -79,6 +79,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
     summary.files = totalFiles;
     emit({ type: 'phase', phase: 'read', total: totalFiles });
     const tasks: Array<{ task: EventTask; plan: EventPlan; rootId: number; rels: string[] }> = [];
+    const awayKeys = new Set<string>();
     let read = 0;
     for (let ri = 0; ri < roots.length; ri++) {
       const root = roots[ri];
@@ -99,6 +100,14 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
         store.pruneErrors(rootId, new Set(found[ri].map((f) => f.rel)));
       })();
       for (const e of inv.errors) emit({ type: 'error', file: e.rel, code: e.error.code, message: e.error.message });
+      // Media an apply moved to a set-aside folder keep their place in their events: the scan
+      // no longer finds them, but they were screened and decided, and undo may bring them back.
+      const seen = new Set(inv.rows.map((r) => r.rel_path));
+      for (const { id: _id, ...m } of store.movedAway(rootId)) {
+        if (seen.has(m.rel_path)) continue;
+        inv.rows.push(m);
+        awayKeys.add(`${rootId}:${m.rel_path}`);
+      }
       const ids = store.replaceRootMedia(rootId, inv.rows);
       const rows = inv.rows.map((r, i) => ({ ...r, id: ids[i] }));
       const byDeployment = new Map<string, typeof rows>();
@@ -132,7 +141,9 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
       store.reconcileEvents([...new Set([...byDeployment.keys(), ...store.deploymentsOfRoot(rootId)])], plans);
     }
     summary.events = tasks.length;
-    const todo = tasks.filter((t) => !store.isAnalysed(t.plan.id, hash, t.plan.input_hash));
+    // An event whose media are all set aside elsewhere keeps the analysis it was decided on.
+    const away = (t: (typeof tasks)[number]): boolean => t.rels.every((r) => awayKeys.has(`${t.rootId}:${r}`));
+    const todo = tasks.filter((t) => !store.isAnalysed(t.plan.id, hash, t.plan.input_hash) && !away(t));
     summary.skipped = tasks.length - todo.length;
     emit({ type: 'phase', phase: 'analyse', total: todo.length, skipped: summary.skipped });
     let done = 0;

@@ -1,5 +1,6 @@
 /** Migrations in order; the ledger's user_version is the number of the last one applied. */
 import { sql as m0001 } from './0001-initial.js';
 import { sql as m0002 } from './0002-review-indexes.js';
+import { sql as m0003 } from './0003-apply-and-audit.js';
 
-export const MIGRATIONS: readonly string[] = [m0001, m0002];
+export const MIGRATIONS: readonly string[] = [m0001, m0002, m0003];

@@ -1,0 +1,143 @@
+/**
+ * `apply`: moves the media of set-aside events into the set-aside folder, keeping their paths
+ * below a folder named after their scan root, and journals every move in the ledger before and
+ * after it happens. Checked before anything moves: the folder is not inside a scanned folder
+ * (a rescan would find the media again) nor the other way round, no destination name is taken,
+ * and the disk has room for what must be copied. Each file must still be the one that was
+ * screened (its fingerprint), or it is left in place and reported. A manifest CSV is written
+ * into the set-aside folder. Nothing is ever deleted: a move either completes or leaves the
+ * original where it was.
+ */
+import { promises as fs } from 'node:fs';
+import path from 'node:path';
+import { fingerprintFile } from '../media/fingerprint.js';
+import { openLedger } from '../ledger/open-ledger.js';
+import { createMoveStore, type MoveCandidate, type MoveStore } from '../ledger/move-store.js';
+import { pipelineError, PipelineErrorCode } from './pipeline-errors.js';
+import { exists, moveVerified, sha256File } from './safe-move.js';
+import { recoverMoves, type Recovery } from './recover-moves.js';
+import { writeManifest } from './apply-manifest.js';
+
+export interface ApplyOptions {
+  ledger: string;
+  to: string;
+  dryRun?: boolean;
+  /** Copy instead of move: the originals stay where they are. */
+  copy?: boolean;
+  who?: string | null;
+  onFile?: (done: number, total: number, file: string) => void;
+  signal?: AbortSignal;
+}
+
+export interface PlannedMove {
+  candidate: MoveCandidate;
+  source: string;
+  dest: string;
+}
+
+export interface ApplySummary {
+  applyId: number | null;
+  dryRun: boolean;
+  planned: PlannedMove[];
+  bytes: number;
+  moved: number;
+  skipped: Array<{ file: string; code: string; message: string }>;
+  recovered: Recovery;
+  manifest: string | null;
+  stopped: boolean;
+}
+
+const inside = (child: string, parent: string): boolean => {
+  const rel = path.relative(parent, child);
+  return rel === '' || (!rel.startsWith('..') && !path.isAbsolute(rel));
+};
+
+/** Destination of each set-aside file: <to>/<root folder name>/<path below the root>. */
+export function planMoves(candidates: MoveCandidate[], to: string): PlannedMove[] {
+  const labels = new Map<string, string>();
+  const used = new Set<string>();
+  for (const root of [...new Set(candidates.map((c) => c.root))].sort()) {
+    const base = path.basename(root) || 'root';
+    let label = base;
+    for (let k = 2; used.has(label); k++) label = `${base}-${k}`;
+    used.add(label);
+    labels.set(root, label);
+  }
+  return candidates.map((c) => ({ candidate: c, source: path.join(c.root, c.rel_path), dest: path.join(to, labels.get(c.root)!, c.rel_path) }));
+}
+
+async function preflight(store: MoveStore, plan: PlannedMove[], to: string, copy: boolean): Promise<void> {
+  for (const root of store.roots()) {
+    if (inside(to, root)) throw pipelineError(PipelineErrorCode.targetInsideRoot, `${to}: is inside the scanned folder ${root}; a rescan would find the set-aside media again. Choose a folder outside it`);
+    if (inside(root, to)) throw pipelineError(PipelineErrorCode.targetInsideRoot, `${to}: holds the scanned folder ${root}; choose a folder that is not above it`);
+  }
+  for (const p of plan) if (await exists(p.dest)) throw pipelineError(PipelineErrorCode.nameClash, `${p.dest}: a file of that name is already in the set-aside folder; nothing was moved or overwritten`);
+  await fs.mkdir(to, { recursive: true });
+  const target = await fs.stat(to);
+  let needed = 0;
+  for (const p of plan) {
+    const st = await fs.stat(p.source).catch(() => undefined);
+    if (st && (copy || st.dev !== target.dev)) needed += st.size;
+  }
+  if (needed > 0) {
+    const fsStat = await fs.statfs(to);
+    const free = Number(fsStat.bavail) * Number(fsStat.bsize);
+    if (free < needed) throw pipelineError(PipelineErrorCode.diskFull, `${to}: needs ${needed} bytes free for the copies, has ${free}; nothing was moved`);
+  }
+}
+
+export async function applyDecisions(o: ApplyOptions): Promise<ApplySummary> {
+  const to = path.resolve(o.to);
+  const db = openLedger(o.ledger);
+  try {
+    const store = createMoveStore(db);
+    const recovered = await recoverMoves(store);
+    const plan = planMoves(store.candidates(), to);
+    const bytes = plan.reduce((a, p) => a + p.candidate.size, 0);
+    const summary: ApplySummary = { applyId: null, dryRun: !!o.dryRun, planned: plan, bytes, moved: 0, skipped: [], recovered, manifest: null, stopped: false };
+    if (o.dryRun || plan.length === 0) return summary;
+    await preflight(store, plan, to, !!o.copy);
+    const applyId = store.startApply(to, o.copy ? 'copy' : 'move', o.who ?? null);
+    summary.applyId = applyId;
+    const done: Array<PlannedMove & { sha: string; method: string }> = [];
+    try {
+      for (const [i, p] of plan.entries()) {
+        if (o.signal?.aborted) {
+          summary.stopped = true;
+          break;
+        }
+        o.onFile?.(i, plan.length, p.candidate.rel_path);
+        const facts = await fingerprintFile(p.source).catch(() => undefined);
+        if (!facts) {
+          summary.skipped.push({ file: p.source, code: PipelineErrorCode.sourceMissing, message: `${p.source}: not found; it was left out` });
+          continue;
+        }
+        if (facts.fingerprint !== p.candidate.fingerprint) {
+          summary.skipped.push({ file: p.source, code: PipelineErrorCode.sourceChanged, message: `${p.source}: changed since it was screened; it was left in place (rescan, review, then apply again)` });
+          continue;
+        }
+        const sha = await sha256File(p.source);
+        const id = store.planMove(applyId, p.candidate, p.source, p.dest, sha);
+        store.setState(id, 'moving');
+        try {
+          const method = await moveVerified(p.source, p.dest, sha, !!o.copy);
+          store.setState(id, 'moved', method);
+          done.push({ ...p, sha, method });
+          summary.moved++;
+        } catch (e) {
+          store.setState(id, 'failed', null, `${(e as { code?: string }).code ?? 'E_IO'}: ${(e as Error).message}`);
+          throw e;
+        }
+      }
+    } catch (e) {
+      store.endApply(applyId, 'stopped');
+      summary.manifest = await writeManifest(to, applyId, done);
+      throw e;
+    }
+    store.endApply(applyId, summary.stopped ? 'stopped' : 'done');
+    summary.manifest = await writeManifest(to, applyId, done);
+    return summary;
+  } finally {
+    db.close();
+  }
+}

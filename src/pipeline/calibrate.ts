@@ -1,0 +1,79 @@
+/**
+ * Calibration of the likely-blank threshold from people's labels in this ledger. An event is
+ * labelled an animal when a person kept it or an audit found an animal in it (keeping is the safe
+ * reading: a person chose not to set it aside); labelled empty when set aside by a person or
+ * answered "no animal" in an audit. The proposed threshold is the highest one whose recall on the
+ * animal-labelled events is at least the target with 95% confidence: the one-sided
+ * Clopper-Pearson lower bound of (animals at or above the threshold) / (animals) must reach the
+ * target. With n labelled animals and none missed, that bound is 0.05^(1/n), so a 99% target
+ * needs at least 299 labelled animals; fewer, and calibration refuses with the number needed.
+ */
+import { openLedger } from '../ledger/open-ledger.js';
+import { createCalibrationStore } from '../ledger/calibration-store.js';
+import { MOTION_MODEL } from '../kernels/model.js';
+import { clopperPearsonLower, sampleSizeForZeroMisses } from '../shared/stats/binomial.js';
+import { MovesiftError } from '../shared/errors.js';
+
+export const CalibrationErrorCode = { tooFewAnimals: 'E_CALIBRATE_TOO_FEW_ANIMALS' } as const;
+const ALPHA = 0.05;
+
+export interface Calibration {
+  target: number;
+  animals: number;
+  empties: number;
+  threshold: number;
+  recall: number;
+  recallLower: number;
+  /** Events scored below the threshold: what would be likely-blank (all events, decided or not). */
+  wouldBeBlank: number;
+  blankNow: number;
+  /** Undecided events whose verdict the threshold changes. */
+  undecidedChanges: number;
+  applied: boolean;
+}
+
+export function calibrate(ledger: string, o: { recall: number; apply?: boolean; who?: string | null }): Calibration {
+  const db = openLedger(ledger);
+  try {
+    const store = createCalibrationStore(db);
+    const events = store.events();
+    const animal = (e: (typeof events)[number]) => e.audit_animal === 1 || (e.audit_animal === null && e.decision === 'keep');
+    const empty = (e: (typeof events)[number]) => e.audit_animal === 0 || (e.audit_animal === null && e.decision === 'set-aside');
+    const scores = events.filter(animal).map((e) => e.score).sort((a, b) => a - b);
+    const n = scores.length;
+    const needed = sampleSizeForZeroMisses(1 - o.recall, ALPHA);
+    if (n < needed) throw new MovesiftError(CalibrationErrorCode.tooFewAnimals, `${n} event(s) are labelled as holding an animal (kept, or found in an audit); showing a recall of ${o.recall} with 95% confidence needs at least ${needed}, even if none were missed. Review more events first`);
+    // Raising the threshold past the i-th lowest animal score loses i animals; keep the highest
+    // threshold (just above the i-th score, or the lowest score itself) whose bound still reaches the target.
+    let best = { threshold: 0, lower: 1, kept: n };
+    for (let i = 0; i < n; i++) {
+      const kept = n - i; // animals at or above scores[i]
+      const lower = clopperPearsonLower(kept, n, ALPHA);
+      if (lower < o.recall) break;
+      best = { threshold: scores[i], lower, kept };
+    }
+    const verdictOf = (score: number) => (score < best.threshold ? 'likely-blank' : score >= MOTION_MODEL.thresholds.motion ? 'motion' : 'unsure');
+    const undecided = events.filter((e) => e.decision === null);
+    const changes = undecided.filter((e) => verdictOf(e.score) !== e.verdict);
+    let applied = false;
+    if (o.apply) {
+      store.reverdict(changes.map((e) => ({ id: e.id, verdict: verdictOf(e.score) })));
+      applied = true;
+    }
+    store.log({ who: o.who ?? null, target: o.recall, threshold: best.threshold, animals: n, lower: best.lower, applied, changed: applied ? changes.length : 0 });
+    return {
+      target: o.recall,
+      animals: n,
+      empties: events.filter(empty).length,
+      threshold: best.threshold,
+      recall: best.kept / n,
+      recallLower: best.lower,
+      wouldBeBlank: events.filter((e) => e.score < best.threshold).length,
+      blankNow: events.filter((e) => e.verdict === 'likely-blank').length,
+      undecidedChanges: changes.length,
+      applied,
+    };
+  } finally {
+    db.close();
+  }
+}

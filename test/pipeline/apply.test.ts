@@ -1,0 +1,205 @@
+/**
+ * apply and undo, on copies of sample-media in temporary folders: files moved and put back with
+ * the same bytes (SHA-256, node:crypto), nothing overwritten on a name clash, a changed file left
+ * in place, copies across file systems verified (/dev/shm is tmpfs here), a full disk refused
+ * before anything moves (a 64 KiB tmpfs, when this machine lets us mount one), and a crash
+ * mid-apply (SIGKILL) finished or reversed by the next run with every file in exactly one place.
+ */
+import { createHash } from 'node:crypto';
+import { cpSync, existsSync, mkdirSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import path from 'node:path';
+import Database from 'better-sqlite3';
+import { describe, expect, it } from 'vitest';
+import { ROOT, runCli, startCli, tempDir } from '../helpers/cli.js';
+
+const sha = (f: string): string => createHash('sha256').update(readFileSync(f)).digest('hex');
+
+function setup(decide: string[] = ['--verdict', 'unsure']): { dir: string; cards: string; ledger: string; hashes: Map<string, string> } {
+  const dir = tempDir('movesift-apply-');
+  const cards = path.join(dir, 'cards');
+  cpSync(path.join(ROOT, 'sample-media/ridge-trail'), cards, { recursive: true });
+  const ledger = path.join(dir, 'a.ledger');
+  expect(runCli(['scan', cards, '--ledger', ledger]).code).toBe(0);
+  expect(runCli(['decide', ledger, '--set-aside', ...decide]).code).toBe(0);
+  const hashes = new Map(readdirSync(cards).map((f) => [f, sha(path.join(cards, f))]));
+  return { dir, cards, ledger, hashes };
+}
+const rows = <T>(ledger: string, sql: string): T[] => {
+  const db = new Database(ledger, { readonly: true });
+  try {
+    return db.prepare(sql).all() as T[];
+  } finally {
+    db.close();
+  }
+};
+
+describe('movesift apply and undo', () => {
+  it('dry run lists the files and bytes and moves nothing', () => {
+    const { cards, ledger, dir } = setup();
+    const r = runCli(['apply', ledger, '--to', path.join(dir, 'aside'), '--dry-run']);
+    expect(r.code, r.stderr).toBe(0);
+    const listed = r.stdout.split('\n').filter((l) => l.includes(' -> '));
+    expect(listed.length).toBeGreaterThan(0);
+    expect(r.stdout).toMatch(/Would move \d+ file\(s\), [\d.]+ MB/);
+    expect(readdirSync(cards)).toHaveLength(32);
+    expect(existsSync(path.join(dir, 'aside'))).toBe(false);
+  });
+
+  it('moves set-aside media with their bytes intact, journals and lists them, and undo puts every one back', () => {
+    const { cards, ledger, dir, hashes } = setup();
+    const aside = path.join(dir, 'aside');
+    const r = runCli(['apply', ledger, '--to', aside]);
+    expect(r.code, r.stderr).toBe(0);
+    const moved = rows<{ source: string; dest: string; sha256: string; state: string; method: string }>(ledger, 'SELECT source, dest, sha256, state, method FROM moves');
+    expect(moved.length).toBeGreaterThan(0);
+    for (const m of moved) {
+      expect(m).toMatchObject({ state: 'moved', method: 'rename' });
+      expect(existsSync(m.source)).toBe(false);
+      expect(sha(m.dest)).toBe(hashes.get(path.basename(m.source)));
+      expect(m.sha256).toBe(hashes.get(path.basename(m.source)));
+      expect(path.relative(aside, m.dest)).toBe(path.join('cards', path.basename(m.source)));
+    }
+    const manifest = readFileSync(path.join(aside, 'movesift-manifest-1.csv'), 'utf8').trim().split('\n');
+    expect(manifest).toHaveLength(moved.length + 1);
+    expect(runCli(['apply', ledger, '--to', aside]).stdout).toContain('No set-aside media left to move.');
+    const u = runCli(['undo', ledger]);
+    expect(u.code, u.stderr).toBe(0);
+    expect(u.stdout).toContain(`Put back ${moved.length} file(s)`);
+    for (const [f, h] of hashes) expect(sha(path.join(cards, f))).toBe(h);
+    expect(rows<{ status: string }>(ledger, 'SELECT status FROM applies')[0].status).toBe('undone');
+  });
+
+  it('a rescan after apply keeps the set-aside events and their decisions, and after undo finds the files again', () => {
+    const { cards, ledger, dir } = setup();
+    const report = () => JSON.parse(runCli(['report', ledger]).stdout) as { events: Array<{ id: string; decision: string | null; verdict: string }>; errors: unknown[] };
+    const before = report();
+    expect(runCli(['apply', ledger, '--to', path.join(dir, 'aside')]).code).toBe(0);
+    expect(runCli(['scan', cards, '--ledger', ledger]).code).toBe(0);
+    const after = report();
+    expect(after.events.map((e) => [e.id, e.decision, e.verdict])).toEqual(before.events.map((e) => [e.id, e.decision, e.verdict]));
+    expect(after.errors).toEqual([]);
+    expect(runCli(['undo', ledger]).code).toBe(0);
+    expect(runCli(['scan', cards, '--ledger', ledger]).code).toBe(0);
+    expect(report().events.map((e) => [e.id, e.decision])).toEqual(before.events.map((e) => [e.id, e.decision]));
+  });
+
+  it('refuses a set-aside folder inside a scanned folder (exit 2) and overwrites nothing on a name clash', () => {
+    const { cards, ledger, dir } = setup();
+    expect(runCli(['apply', ledger, '--to', path.join(cards, 'aside')]).code).toBe(2);
+    const aside = path.join(dir, 'aside');
+    const dest = rows<{ rel_path: string }>(ledger, "SELECT m.rel_path FROM latest_decisions d JOIN event_media em ON em.event_id = d.event_id JOIN media m ON m.id = em.media_id WHERE d.decision = 'set-aside' ORDER BY m.rel_path DESC LIMIT 1")[0].rel_path;
+    mkdirSync(path.join(aside, 'cards'), { recursive: true });
+    writeFileSync(path.join(aside, 'cards', dest), 'someone else\'s file');
+    const r = runCli(['apply', ledger, '--to', aside]);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toContain('E_APPLY_NAME_CLASH');
+    expect(readFileSync(path.join(aside, 'cards', dest), 'utf8')).toBe('someone else\'s file');
+    expect(readdirSync(cards)).toHaveLength(32); // checked before anything moved
+  });
+
+  it('leaves a file changed since the scan in place and moves the rest', () => {
+    const { cards, ledger, dir } = setup();
+    const first = rows<{ rel_path: string }>(ledger, "SELECT m.rel_path FROM latest_decisions d JOIN event_media em ON em.event_id = d.event_id JOIN media m ON m.id = em.media_id WHERE d.decision = 'set-aside' ORDER BY m.rel_path LIMIT 1")[0].rel_path;
+    writeFileSync(path.join(cards, first), Buffer.concat([readFileSync(path.join(cards, first)), Buffer.from('edited')]));
+    const r = runCli(['apply', ledger, '--to', path.join(dir, 'aside')]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).toContain('E_APPLY_SOURCE_CHANGED');
+    expect(existsSync(path.join(cards, first))).toBe(true);
+    expect(rows<{ n: number }>(ledger, "SELECT count(*) AS n FROM moves WHERE state = 'moved'")[0].n).toBeGreaterThan(0);
+  });
+
+  it.skipIf(!existsSync('/dev/shm') || statSync('/dev/shm').dev === statSync(tempDir()).dev)('copies across file systems with a SHA-256 check, and --copy keeps the originals', () => {
+    const { cards, ledger, hashes } = setup();
+    const aside = tempDirOn('/dev/shm');
+    const r = runCli(['apply', ledger, '--to', aside]);
+    expect(r.code, r.stderr).toBe(0);
+    const moved = rows<{ dest: string; method: string; source: string }>(ledger, 'SELECT dest, method, source FROM moves');
+    for (const m of moved) {
+      expect(m.method).toBe('copy');
+      expect(existsSync(m.source)).toBe(false);
+      expect(sha(m.dest)).toBe(hashes.get(path.basename(m.source)));
+    }
+    expect(runCli(['undo', ledger]).code).toBe(0);
+    const copyTo = tempDirOn('/dev/shm');
+    expect(runCli(['apply', ledger, '--to', copyTo, '--copy']).code).toBe(0);
+    expect(readdirSync(cards)).toHaveLength(32); // the originals stayed
+    expect(rows<{ method: string }>(ledger, "SELECT method FROM moves WHERE state = 'moved'").every((m) => m.method === 'copy-kept')).toBe(true);
+    expect(runCli(['undo', ledger]).code).toBe(0);
+    expect(readdirSync(path.join(copyTo, 'cards'))).toHaveLength(0); // the copies are gone, the originals checked
+  });
+
+  it('refuses before moving anything when the disk has no room', () => {
+    const { cards, ledger, dir } = setup();
+    const small = path.join(dir, 'small');
+    mkdirSync(small);
+    const mounted = spawnSync('mount', ['-t', 'tmpfs', '-o', 'size=64k', 'tmpfs', small]).status === 0;
+    if (!mounted) return console.log('skipped the full-disk case: cannot mount a small tmpfs here');
+    try {
+      const r = runCli(['apply', ledger, '--to', small]);
+      expect(r.code).toBe(1);
+      expect(r.stderr).toContain('E_APPLY_DISK_FULL');
+      expect(readdirSync(cards)).toHaveLength(32);
+    } finally {
+      spawnSync('umount', [small]);
+    }
+  });
+
+  it('puts back nothing that changed while set aside, and says so with exit 1', () => {
+    const { ledger, dir } = setup();
+    expect(runCli(['apply', ledger, '--to', path.join(dir, 'aside')]).code).toBe(0);
+    const m = rows<{ dest: string; source: string }>(ledger, 'SELECT dest, source FROM moves LIMIT 1')[0];
+    writeFileSync(m.dest, 'changed while set aside');
+    const u = runCli(['undo', ledger]);
+    expect(u.code).toBe(1);
+    expect(u.stderr).toContain('E_UNDO_HASH_MISMATCH');
+    expect(existsSync(m.source)).toBe(false);
+    expect(readFileSync(m.dest, 'utf8')).toBe('changed while set aside');
+  });
+
+  it('after a SIGKILL mid-apply, the next run leaves every file in exactly one place, whole', async () => {
+    const dir = tempDir('movesift-apply-kill-');
+    const cards = path.join(dir, 'cards');
+    mkdirSync(cards);
+    // Many files make the apply long enough to be killed mid-way: the sample images, copied 12 times.
+    for (let k = 0; k < 12; k++) cpSync(path.join(ROOT, 'sample-media/ridge-trail'), path.join(cards, `d${k}`), { recursive: true });
+    const ledger = path.join(dir, 'k.ledger');
+    expect(runCli(['scan', cards, '--ledger', ledger, '--workers', '2']).code).toBe(0);
+    for (const v of ['likely-blank', 'unsure', 'motion']) expect(runCli(['decide', ledger, '--set-aside', '--verdict', v]).code).toBe(0);
+    const before = new Map<string, string>();
+    for (const d of readdirSync(cards)) for (const f of readdirSync(path.join(cards, d))) before.set(`${d}/${f}`, sha(path.join(cards, d, f)));
+    const aside = tempDirOn('/dev/shm', dir); // across file systems: copies, the slow path
+    const child = startCli(['apply', ledger, '--to', aside]);
+    // Kill it once some files have gone and many have not.
+    const total = before.size;
+    for (let t = 0; t < 600; t++) {
+      await new Promise((r) => setTimeout(r, 25));
+      const moved = existsSync(path.join(aside, 'cards')) ? readdirSync(path.join(aside, 'cards')).reduce((a, d) => a + readdirSync(path.join(aside, 'cards', d)).length, 0) : 0;
+      if (moved >= 20) break;
+    }
+    child.kill('SIGKILL');
+    await new Promise((r) => child.once('exit', r));
+    const done = rows<{ n: number }>(ledger, "SELECT count(*) AS n FROM moves WHERE state = 'moved'")[0].n;
+    console.log(`killed after ${done} of ${total} files were journalled as moved`);
+    expect(done).toBeGreaterThan(0);
+    expect(done).toBeLessThan(total);
+    const again = runCli(['apply', ledger, '--to', aside]);
+    expect(again.code, again.stderr).toBe(0);
+    expect(rows<{ n: number }>(ledger, "SELECT count(*) AS n FROM moves WHERE state IN ('planned', 'moving', 'restoring')")[0].n).toBe(0);
+    for (const [rel, h] of before) {
+      const home = path.join(cards, rel), away = path.join(aside, 'cards', rel);
+      expect(existsSync(home) !== existsSync(away), rel).toBe(true);
+      expect(sha(existsSync(home) ? home : away)).toBe(h);
+      expect(existsSync(away + '.movesift-part')).toBe(false);
+    }
+    expect(runCli(['undo', ledger]).code).toBe(0);
+    for (const [rel, h] of before) expect(sha(path.join(cards, rel))).toBe(h);
+  }, 240_000);
+});
+
+function tempDirOn(base: string, fallback?: string): string {
+  const ok = existsSync(base) && statSync(base).dev !== statSync(tempDir()).dev;
+  const dir = path.join(ok ? base : (fallback ?? tempDir()), `movesift-aside-${process.pid}-${Math.random().toString(36).slice(2)}`);
+  mkdirSync(dir, { recursive: true });
+  return dir;
+}
