@@ -8,6 +8,7 @@ export const ApiErrorCode = {
   noLedger: 'E_NO_LEDGER',
   scanRunning: 'E_SCAN_RUNNING',
   noScan: 'E_NO_SCAN',
+  taskRunning: 'E_TASK_RUNNING',
 } as const;
 
 export type ApiErrorCodeValue = (typeof ApiErrorCode)[keyof typeof ApiErrorCode];

@@ -9,7 +9,8 @@
  *   POST /api/scans {folders:[...], ledger?, flow?}   scan folders into the open (or given) ledger
  *   POST /api/scans/stop                  stop the running scan after its current event
  *   GET  /api/scans/progress              the scan's state as server-sent events
- *   ...  review routes (review-routes.ts)
+ *   GET  /api/tasks/progress              the running apply, undo or cut as server-sent events
+ *   ...  action routes (action-routes.ts), then review routes (review-routes.ts)
  */
 import os from 'node:os';
 import path from 'node:path';
@@ -24,7 +25,12 @@ import { eventStream } from './event-stream.js';
 import { readJson, userPath } from './request-params.js';
 import { reviewRoute, type OpenLedger } from './review-routes.js';
 import { createScanJobs, type ScanJobState } from './scan-jobs.js';
+import { createTaskJobs, type TaskState } from './task-jobs.js';
+import { actionRoute } from './action-routes.js';
+import { MovesiftError } from '../shared/errors.js';
 import { staticFile } from './static-files.js';
+
+const NOT_FOUND_CODES = new Set(['E_AUDIT_UNKNOWN', 'E_UNKNOWN_APPLY', 'E_AUDIT_NOT_SAMPLED']);
 
 export interface HandlerOptions {
   /** The ledger to open at start; without it the app starts on its start screen. */
@@ -46,10 +52,12 @@ export function createHandler(o: HandlerOptions): Handler {
   let db: Ledger | null = null;
   let open: OpenLedger | null = null;
   const jobs = createScanJobs(o.scan);
+  const tasks = createTaskJobs();
   const workers = o.scanWorkers ?? Math.max(1, Math.min(8, os.availableParallelism() - 1));
 
   function openFile(file: string, create: boolean): void {
     if (jobs.running()) throw new HttpError(409, ApiErrorCode.scanRunning, 'a scan is running; open another ledger when it has finished or been stopped');
+    if (tasks.running()) throw new HttpError(409, ApiErrorCode.taskRunning, 'an apply, undo or cut is running; open another ledger when it has finished');
     if (create && existsSync(file) && file !== open?.file) {
       // A new ledger may not land on an existing file; opening an existing one is the other button.
       throw new HttpError(409, 'E_LEDGER_EXISTS', `${file}: already exists; open it instead, or choose a new name`);
@@ -68,7 +76,7 @@ export function createHandler(o: HandlerOptions): Handler {
       return '';
     }
   })();
-  const session = (): SessionInfo => ({ ledger: open?.file ?? null, name: open ? path.basename(open.file) : null, engineVersion: ENGINE_VERSION, user, scan: jobs.state() });
+  const session = (): SessionInfo => ({ ledger: open?.file ?? null, name: open ? path.basename(open.file) : null, engineVersion: ENGINE_VERSION, user, scan: jobs.state(), task: tasks.state() });
 
   async function route(req: Request): Promise<Response> {
     const url = new URL(req.url);
@@ -108,8 +116,12 @@ export function createHandler(o: HandlerOptions): Handler {
       only('GET');
       return eventStream<ScanJobState>(jobs.state(), (send) => jobs.subscribe(send));
     }
+    if (what === 'tasks' && sub === 'progress' && parts.length === 3) {
+      only('GET');
+      return eventStream<TaskState>(tasks.state(), (send) => tasks.subscribe(send));
+    }
     if (!open) throw new HttpError(409, ApiErrorCode.noLedger, 'no ledger is open: open one or scan a folder first');
-    return reviewRoute(req, parts, url, open, only);
+    return (await actionRoute(req, parts, url, open.file, tasks, only)) ?? reviewRoute(req, parts, url, open, only);
   }
 
   return {
@@ -121,11 +133,15 @@ export function createHandler(o: HandlerOptions): Handler {
         if (e instanceof URIError) return errorResponse(400, ApiErrorCode.badRequest, 'malformed percent-encoding in the path');
         const code = (e as { code?: string }).code;
         if (typeof code === 'string' && code.startsWith('E_LEDGER')) return errorResponse(code === 'E_LEDGER_MISSING' ? 404 : 400, code, (e as Error).message);
+        // A refusal from the layers below (a name clash, too few labels, nothing set aside...):
+        // the request was understood, the ledger's state does not allow it.
+        if (e instanceof MovesiftError) return errorResponse(NOT_FOUND_CODES.has(e.code) ? 404 : e.code === 'E_INVALID_ARGUMENT' || e.code === 'E_DEPLOYMENTS_TABLE' ? 400 : 409, e.code, e.message);
         throw e;
       }
     },
     async close() {
       await jobs.settle(true);
+      await tasks.settle();
       db?.close();
       db = null;
     },

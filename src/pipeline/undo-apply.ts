@@ -18,7 +18,7 @@ export interface UndoSummary {
   recovered: Recovery;
 }
 
-export async function undoApply(o: { ledger: string; applyId?: number }): Promise<UndoSummary> {
+export async function undoApply(o: { ledger: string; applyId?: number; onFile?: (done: number, total: number, file: string) => void }): Promise<UndoSummary> {
   const db = openLedger(o.ledger);
   try {
     const store = createMoveStore(db);
@@ -26,7 +26,8 @@ export async function undoApply(o: { ledger: string; applyId?: number }): Promis
     const recovered = await recoverMoves(store);
     const rows = store.moved(o.applyId);
     const summary: UndoSummary = { applies: [...new Set(rows.map((r) => r.apply_id))], restored: 0, problems: [], recovered };
-    for (const m of rows) {
+    for (const [i, m] of rows.entries()) {
+      o.onFile?.(i, rows.length, m.source);
       const problem = (code: string, message: string) => summary.problems.push({ file: m.dest, code, message });
       if (!(await exists(m.dest))) {
         problem(PipelineErrorCode.undoMissing, `${m.dest}: not in the set-aside folder any more; the journal keeps its SHA-256 (${m.sha256})`);

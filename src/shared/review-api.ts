@@ -141,12 +141,86 @@ export interface ScanJobState {
   failure: { code: string; message: string } | null;
 }
 
+export interface TaskState {
+  task: number;
+  kind: 'apply' | 'undo' | 'cut';
+  status: 'running' | 'done' | 'failed';
+  done: number;
+  total: number;
+  file: string | null;
+  result: unknown;
+  failure: { code: string; message: string } | null;
+}
+
 export interface SessionInfo {
   ledger: string | null;
   name: string | null;
   engineVersion: string;
   user: string;
   scan: ScanJobState | null;
+  task: TaskState | null;
+}
+
+export interface ApplyPlan {
+  files: number;
+  bytes: number;
+  events: number;
+  moves: Array<{ source: string; dest: string }>;
+}
+
+export interface ApplyInfo {
+  id: number;
+  started_at: string;
+  finished_at: string | null;
+  target: string;
+  mode: 'move' | 'copy';
+  status: string;
+  who: string | null;
+  moved: number;
+  bytes: number;
+}
+
+export interface AuditItem {
+  position: number;
+  event_id: string;
+  stratum: number;
+  score: number | null;
+  verdict: string | null;
+  animal: number | null;
+  who: string | null;
+  at: string | null;
+}
+
+export interface AuditReport {
+  id: number;
+  createdAt: string;
+  who: string | null;
+  seed: number;
+  population: number;
+  sampleSize: number;
+  answered: number;
+  animals: number;
+  tolerance: number;
+  alpha: number;
+  share: { estimate: number; lower: number; upper: number; method: 'clopper-pearson' | 'hypergeometric' };
+  shareUpperOneSided: number;
+  missedEvents: { estimate: number; lower: number; upper: number };
+  verdict: 'pass' | 'fail' | 'incomplete';
+  zeroMissSampleSize: number;
+  items: AuditItem[];
+}
+
+export interface CalibrationResult {
+  target: number;
+  animals: number;
+  empties: number;
+  threshold: number;
+  recall: number;
+  recallLower: number;
+  wouldBeBlank: number;
+  blankNow: number;
+  undecidedChanges: number;
+  applied: boolean;
 }
 
 export interface ApiError {

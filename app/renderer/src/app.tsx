@@ -19,12 +19,14 @@ import { EventDetailView } from './features/detail/components/event-detail';
 import { HelpOverlay } from './features/help/components/help-overlay';
 import { StartScreen } from './features/start/components/start-screen';
 import { useScanProgress } from './features/start/hooks/use-scan-progress';
+import { ActPanel } from './features/act/components/act-panel';
+import { AuditView } from './features/audit/components/audit-view';
 
 const SCORE_STEP = 0.05;
 
 export function App({ initial }: { initial: SessionInfo }) {
   const [session, setSession] = useState(initial);
-  const [view, setView] = useState<'start' | 'grid' | 'detail'>(initial.ledger ? 'grid' : 'start');
+  const [view, setView] = useState<'start' | 'grid' | 'detail' | 'audit' | 'act'>(initial.ledger ? 'grid' : 'start');
   const [help, setHelp] = useState(false);
   const [confirm, setConfirm] = useState<{ request: ConfirmRequest; run(): void } | null>(null);
   const [filter, setFilter] = useState<ViewFilter>(DEFAULT_FILTER);
@@ -37,6 +39,7 @@ export function App({ initial }: { initial: SessionInfo }) {
   const [deployments, setDeployments] = useState<string[]>([]);
   const geometry = useRef<GridGeometry>({ cols: 1, rowsInView: 1 });
   const detailActions = useRef<((a: Action) => boolean) | null>(null);
+  const auditActions = useRef<((a: Action) => boolean) | null>(null);
   const scan = useScanProgress(initial.scan);
   const pages = useEventPages(filter, session.ledger);
   const total = pages.total ?? 0;
@@ -119,7 +122,8 @@ export function App({ initial }: { initial: SessionInfo }) {
 
   const act = (a: Action): void => {
     const { cols, rowsInView } = geometry.current;
-    if (view === 'detail' && detailActions.current?.(a)) return;
+    if ((view === 'detail' || view === 'audit') && detailActions.current?.(a)) return;
+    if (view === 'audit' && auditActions.current?.(a)) return;
     switch (a) {
       case 'move-left': return moveTo(focus - 1);
       case 'move-right': return moveTo(focus + 1);
@@ -162,6 +166,8 @@ export function App({ initial }: { initial: SessionInfo }) {
       case 'toggle-heat': return setHeat((h) => !h);
       case 'help': return setHelp(true);
       case 'start-screen': return setView('start');
+      case 'audit-mode': return setView('audit');
+      case 'act-mode': return setView('act');
       case 'event-prev': return moveTo(focus - 1);
       case 'event-next': return moveTo(focus + 1);
       case 'confirm-yes': {
@@ -185,7 +191,10 @@ export function App({ initial }: { initial: SessionInfo }) {
     const onKey = (e: KeyboardEvent) => {
       if (e.ctrlKey || e.metaKey || e.altKey) return;
       const t = e.target as HTMLElement | null;
-      if (t && (t.tagName === 'INPUT' || t.tagName === 'TEXTAREA')) return;
+      if (t && (t.tagName === 'INPUT' || t.tagName === 'TEXTAREA' || t.tagName === 'SELECT')) {
+        if (e.key === 'Escape') t.blur(); // the next Esc leaves the screen
+        return;
+      }
       const a = actionFor(modeRef.current, keyName(e));
       if (!a) return;
       e.preventDefault();
@@ -214,6 +223,10 @@ export function App({ initial }: { initial: SessionInfo }) {
   const bindActions = useCallback((fn: ((a: Action) => boolean) | null) => {
     detailActions.current = fn;
   }, []);
+  const bindAudit = useCallback((fn: ((a: Action) => boolean) | null) => {
+    auditActions.current = fn;
+  }, []);
+  const ask = useCallback((request: ConfirmRequest, run: () => void) => setConfirm({ request, run }), []);
 
   if (view === 'start' || !session.ledger) {
     return <StartScreen session={session} scan={scan} who={who} onWho={setWho} onSession={setSession} onReview={() => session.ledger && setView('grid')} />;
@@ -227,6 +240,8 @@ export function App({ initial }: { initial: SessionInfo }) {
       ) : (
         <div className="empty-note">No event matches these filters. Press 0 for every verdict, d / n / p to cycle the other filters.</div>
       ))}
+      {view === 'audit' && <AuditView who={who} bindActions={bindAudit} renderEvent={(id, position) => <EventDetailView key={id} id={id} heat={heat} decision={undefined} position={position} bindActions={bindActions} />} />}
+      {view === 'act' && <ActPanel who={who} initialTask={session.task} ask={ask} onChanged={() => pages.reload()} />}
       {view === 'detail' && current && <EventDetailView id={current.id} heat={heat} decision={current.decision} position={`${count(focus + 1)} of ${count(total)}`} bindActions={bindActions} />}
       <footer className="status-line" data-testid="status-line" role="status">
         {pages.error ? `Could not load events: ${pages.error}` : message}

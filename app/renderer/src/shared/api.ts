@@ -3,7 +3,7 @@
  * so the same code runs against the loopback server (browser mode) and the custom protocol
  * (Electron). Errors arrive as {code, message} and are thrown as ApiFailure with that code.
  */
-import type { DecideResult, Decision, DeploymentCount, EventDetail, EventPage, ScanJobState, SessionInfo, UndoResult } from '../../../../src/shared/review-api';
+import type { ApplyInfo, ApplyPlan, AuditReport, CalibrationResult, DecideResult, Decision, DeploymentCount, EventDetail, EventPage, ScanJobState, SessionInfo, TaskState, UndoResult } from '../../../../src/shared/review-api';
 import type { ViewFilter } from './view-filter';
 
 export class ApiFailure extends Error {
@@ -58,34 +58,51 @@ export const api = {
   previewUrl: (id: string, kind: 'frame' | 'heat', position: number) => `api/events/${id}/preview/${kind}/${position}`,
   mediaUrl: (id: number) => `api/media/${id}`,
 
-  /** Follows the scan's progress stream; returns a function that stops following. Reads the
-   *  event stream with fetch (not EventSource) so it also works over Electron's custom protocol. */
-  watchScan(onState: (s: ScanJobState) => void): () => void {
-    const ctl = new AbortController();
-    (async () => {
-      while (!ctl.signal.aborted) {
-        try {
-          const r = await fetch('api/scans/progress', { signal: ctl.signal });
-          const reader = r.body!.pipeThrough(new TextDecoderStream()).getReader();
-          let buf = '';
-          for (;;) {
-            const { value, done } = await reader.read();
-            if (done) break;
-            buf += value;
-            let cut: number;
-            while ((cut = buf.indexOf('\n\n')) >= 0) {
-              const block = buf.slice(0, cut);
-              buf = buf.slice(cut + 2);
-              const data = block.split('\n').filter((l) => l.startsWith('data: ')).map((l) => l.slice(6)).join('\n');
-              if (data) onState(JSON.parse(data) as ScanJobState);
-            }
-          }
-        } catch {
-          /* reconnect below unless stopped */
-        }
-        if (!ctl.signal.aborted) await new Promise((r) => setTimeout(r, 1000));
-      }
-    })();
-    return () => ctl.abort();
-  },
+  applyPlan: (to: string) => call<ApplyPlan>(`api/apply/plan?${new URLSearchParams({ to })}`),
+  startApply: (to: string, copy: boolean, who: string) => call<TaskState>('api/apply', post({ to, copy, who })),
+  applies: () => call<ApplyInfo[]>('api/applies'),
+  undoApply: (apply?: number) => call<TaskState>('api/undo', post({ apply })),
+  auditPlan: (tolerance: number) => call<{ sample: number }>(`api/audits/plan?tolerance=${tolerance}`),
+  audits: () => call<Array<{ id: number; sample_size: number; population: number; answered: number }>>('api/audits'),
+  drawAudit: (o: { sample: number; strata: number; tolerance: number; who: string }) => call<AuditReport>('api/audits', post(o)),
+  audit: (id: number) => call<AuditReport>(`api/audits/${id}`),
+  answer: (id: number, event: string, animal: boolean, who: string) => call<AuditReport>(`api/audits/${id}/answers`, post({ event, animal, who })),
+  calibrate: (recall: number, apply: boolean, who: string) => call<CalibrationResult>('api/calibrate', post({ recall, apply, who })),
+  exportData: (o: { format: 'csv' | 'camtrap-dp'; out: string; utcOffset?: string; deployments?: string; who: string }) => call<{ out: string }>('api/export', post(o)),
+  cut: (out: string, exact: boolean) => call<TaskState>('api/cut', post({ out, exact })),
+
+  watchScan: (onState: (s: ScanJobState) => void): (() => void) => watchStream('api/scans/progress', onState),
+  watchTasks: (onState: (s: TaskState) => void): (() => void) => watchStream('api/tasks/progress', onState),
 };
+
+/** Follows a server-sent event stream, reconnecting after a second when it drops; returns a
+ *  function that stops following. Read with fetch (not EventSource) so it also works over
+ *  Electron's custom protocol. */
+function watchStream<T>(url: string, onState: (s: T) => void): () => void {
+  const ctl = new AbortController();
+  (async () => {
+    while (!ctl.signal.aborted) {
+      try {
+        const r = await fetch(url, { signal: ctl.signal });
+        const reader = r.body!.pipeThrough(new TextDecoderStream()).getReader();
+        let buf = '';
+        for (;;) {
+          const { value, done } = await reader.read();
+          if (done) break;
+          buf += value;
+          let cut: number;
+          while ((cut = buf.indexOf('\n\n')) >= 0) {
+            const block = buf.slice(0, cut);
+            buf = buf.slice(cut + 2);
+            const data = block.split('\n').filter((l) => l.startsWith('data: ')).map((l) => l.slice(6)).join('\n');
+            if (data) onState(JSON.parse(data) as T);
+          }
+        }
+      } catch {
+        /* reconnect below unless stopped */
+      }
+      if (!ctl.signal.aborted) await new Promise((r) => setTimeout(r, 1000));
+    }
+  })();
+  return () => ctl.abort();
+}

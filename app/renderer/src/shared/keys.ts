@@ -4,7 +4,7 @@
  * letters and one on the arrows: decisions are k (keep) and s (set aside) wherever an event is
  * in view, u undoes, digits pick a verdict, and arrows always move.
  */
-export type Mode = 'grid' | 'detail' | 'confirm' | 'help' | 'start';
+export type Mode = 'grid' | 'detail' | 'confirm' | 'help' | 'start' | 'audit' | 'act';
 
 export type Action =
   | 'move-left' | 'move-right' | 'move-up' | 'move-down' | 'move-first' | 'move-last' | 'page-up' | 'page-down'
@@ -14,7 +14,8 @@ export type Action =
   | 'cycle-decision' | 'cycle-light' | 'cycle-deployment' | 'score-lower' | 'score-raise' | 'toggle-order' | 'reverse-order'
   | 'toggle-heat' | 'help' | 'close' | 'start-screen'
   | 'frame-prev' | 'frame-next' | 'event-prev' | 'event-next' | 'window-prev' | 'window-next' | 'play-pause'
-  | 'confirm-yes' | 'confirm-no';
+  | 'confirm-yes' | 'confirm-no'
+  | 'audit-mode' | 'act-mode' | 'audit-yes' | 'audit-no';
 
 export interface KeyBinding {
   modes: Mode[];
@@ -47,15 +48,21 @@ export const KEYS: readonly KeyBinding[] = [
   { modes: ['grid'], keys: ['=', '+'], action: 'score-raise', text: 'show scores at most 0.05 higher (to every score)' },
   { modes: ['grid'], keys: ['o'], action: 'toggle-order', text: 'order by time or by score' },
   { modes: ['grid'], keys: ['r'], action: 'reverse-order', text: 'reverse the order' },
-  { modes: ['grid', 'detail'], keys: ['h'], action: 'toggle-heat', text: 'change overlay on or off' },
-  { modes: ['detail'], keys: ['ArrowLeft', 'ArrowRight'], action: 'frame-prev', text: 'burst: previous / next frame · clip: 2 s back / forward' },
+  { modes: ['grid', 'detail', 'audit'], keys: ['h'], action: 'toggle-heat', text: 'change overlay on or off' },
+  { modes: ['detail', 'audit'], keys: ['ArrowLeft', 'ArrowRight'], action: 'frame-prev', text: 'burst: previous / next frame · clip: 2 s back / forward' },
   { modes: ['detail'], keys: ['ArrowUp', 'ArrowDown'], action: 'event-prev', text: 'previous / next event in the grid order' },
-  { modes: ['detail'], keys: ['[', ']'], action: 'window-prev', text: 'clip: previous / next activity window' },
-  { modes: ['detail'], keys: [' '], action: 'play-pause', text: 'clip: play or pause' },
+  { modes: ['audit'], keys: ['ArrowUp', 'ArrowDown'], action: 'event-prev', text: 'previous / next sampled event' },
+  { modes: ['detail', 'audit'], keys: ['[', ']'], action: 'window-prev', text: 'clip: previous / next activity window' },
+  { modes: ['detail', 'audit'], keys: [' '], action: 'play-pause', text: 'clip: play or pause' },
   { modes: ['detail'], keys: ['Escape', 'Enter'], action: 'close', text: 'back to the grid' },
+  { modes: ['audit'], keys: ['y'], action: 'audit-yes', text: 'there is an animal in this event' },
+  { modes: ['audit'], keys: ['n'], action: 'audit-no', text: 'there is no animal in this event' },
+  { modes: ['audit', 'act'], keys: ['Escape'], action: 'close', text: 'back to the grid' },
+  { modes: ['grid', 'detail'], keys: ['v'], action: 'audit-mode', text: 'audit: check a random sample of the set-aside events' },
+  { modes: ['grid', 'detail'], keys: ['m'], action: 'act-mode', text: 'act on the decisions: move set-aside media, undo, calibrate, export' },
   { modes: ['confirm'], keys: ['y'], action: 'confirm-yes', text: 'yes, record the decision' },
   { modes: ['confirm'], keys: ['Escape', 'n', 'Enter'], action: 'confirm-no', text: 'no, change nothing (the default)' },
-  { modes: ['grid', 'detail'], keys: ['?'], action: 'help', text: 'this list of keys' },
+  { modes: ['grid', 'detail', 'audit', 'act'], keys: ['?'], action: 'help', text: 'this list of keys' },
   { modes: ['help'], keys: ['Escape', '?'], action: 'close', text: 'close this list' },
   { modes: ['grid', 'detail'], keys: ['g'], action: 'start-screen', text: 'start screen: open another ledger or scan folders' },
 ];

@@ -4,6 +4,7 @@ import { KEYS, keyLabel, type Mode } from '../../../shared/keys';
 const PLACES: Array<{ mode: Mode; title: string }> = [
   { mode: 'grid', title: 'Grid' },
   { mode: 'detail', title: 'One event (burst or clip)' },
+  { mode: 'audit', title: 'Audit' },
   { mode: 'confirm', title: 'When asked to confirm' },
 ];
 

@@ -1,0 +1,93 @@
+/**
+ * Acting on decisions in a real Chromium: the set-aside media moved from the app (the plan shown
+ * first, the move confirmed, its progress followed) and put back; an audit drawn and answered
+ * with the keyboard, its report updating. Checked on the page, on disk and in the ledger.
+ */
+import { cpSync, existsSync, readdirSync } from 'node:fs';
+import path from 'node:path';
+import Database from 'better-sqlite3';
+import type { Browser, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { scan } from '../../src/pipeline/scan.js';
+import { launchChromium } from '../helpers/browser.js';
+import { ROOT, runCli, tempDir } from '../helpers/cli.js';
+import { startReview, type RunningReview } from '../helpers/review-server.js';
+
+const SHOTS = path.join(ROOT, 'test-artifacts');
+const dir = tempDir('movesift-e2e-act-');
+const cards = path.join(dir, 'cards');
+const ledger = path.join(dir, 'act.ledger');
+let review: RunningReview;
+let browser: Browser;
+let page: Page;
+async function until(what: string, f: () => Promise<boolean>, ms = 20_000): Promise<void> {
+  const end = Date.now() + ms;
+  while (Date.now() < end) {
+    if (await f().catch(() => false)) return;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  throw new Error(`timed out waiting for ${what}`);
+}
+
+beforeAll(async () => {
+  cpSync(path.join(ROOT, 'sample-media/ridge-trail'), path.join(cards, 'ridge-trail'), { recursive: true });
+  await scan({ roots: [cards], ledger });
+  expect(runCli(['decide', ledger, '--set-aside', '--verdict', 'likely-blank']).code).toBe(0);
+  review = await startReview([ledger]);
+  browser = await launchChromium();
+  page = await browser.newPage({ viewport: { width: 1400, height: 900 } });
+  page.on('pageerror', (e) => console.error('page error:', e.message));
+  await page.goto(review.url);
+  await until('cards', async () => (await page.locator('.card[data-event]').count()) > 0);
+}, 180_000);
+afterAll(async () => {
+  await browser?.close();
+  await review?.stop();
+});
+
+describe('acting on decisions in the app', () => {
+  it('shows what would move, moves it after a confirmation, and undoes it', async () => {
+    await page.keyboard.press('m');
+    await until('the act panel', async () => (await page.getByTestId('act-panel').count()) === 1);
+    const aside = path.join(dir, 'aside');
+    await page.getByLabel('set-aside folder').fill(aside);
+    await page.getByRole('button', { name: 'Show what would move' }).click();
+    await until('the plan', async () => (await page.getByTestId('apply-plan').count()) === 1);
+    expect(existsSync(aside)).toBe(false);
+    const files = Number((await page.getByTestId('apply-plan').textContent())!.match(/(\d+) files/)![1]);
+    expect(files).toBeGreaterThan(0);
+    await page.getByRole('button', { name: /^Move \d+ files/ }).click();
+    await until('the confirmation', async () => (await page.locator('[role=dialog]').count()) === 1);
+    await page.screenshot({ path: path.join(SHOTS, 'act-confirm.png') });
+    await page.keyboard.press('y');
+    await until('the apply to finish', async () => (await page.locator('[data-testid=task][data-kind=apply]').getAttribute('data-status')) === 'done');
+    expect(readdirSync(path.join(aside, 'cards', 'ridge-trail'))).toHaveLength(files);
+    await until('the applies list', async () => (await page.getByTestId('applies').count()) === 1);
+    await page.screenshot({ path: path.join(SHOTS, 'act.png') });
+    await page.getByRole('button', { name: /^Undo apply/ }).click();
+    await until('the undo to finish', async () => (await page.locator('[data-testid=task][data-kind=undo]').getAttribute('data-status')) === 'done');
+    expect(readdirSync(path.join(cards, 'ridge-trail'))).toHaveLength(32);
+    await page.keyboard.press('Escape');
+    await page.keyboard.press('Escape');
+    await until('the grid', async () => (await page.locator('.grid-scroll').count()) === 1);
+  });
+
+  it('draws an audit and takes yes/no answers from the keyboard', async () => {
+    await page.keyboard.press('v');
+    await until('the draw form', async () => (await page.getByTestId('audit-draw').count()) === 1);
+    await page.getByLabel('sample size').fill('2');
+    await page.getByRole('button', { name: 'Draw the sample' }).click();
+    await until('the audit view', async () => (await page.getByTestId('audit-view').count()) === 1);
+    await until('the first event', async () => (await page.getByTestId('detail').count()) === 1);
+    await page.locator('body').click({ position: { x: 5, y: 5 } }); // focus out of any input
+    await page.keyboard.press('n');
+    await until('one answer', async () => /1 of 2 answered/.test((await page.getByTestId('audit-summary').textContent()) ?? ''));
+    await page.keyboard.press('y');
+    await until('the verdict', async () => (await page.getByTestId('audit-summary').getAttribute('data-verdict')) === 'fail');
+    await page.screenshot({ path: path.join(SHOTS, 'audit.png') });
+    const db = new Database(ledger, { readonly: true });
+    const rows = db.prepare('SELECT animal FROM audit_answers ORDER BY id').all() as Array<{ animal: number }>;
+    db.close();
+    expect(rows.map((r) => r.animal)).toEqual([0, 1]);
+  });
+});
