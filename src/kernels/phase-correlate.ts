@@ -10,7 +10,8 @@
  * a pure circular shift, near 0 when nothing matches.
  */
 import { checkSameShape, checkFrame, type FloatImage, type GreyFrame } from './frame.js';
-import { fft2d } from './fft2d.js';
+import { fft2d, fft2dReal } from './fft2d.js';
+import { upperMedian } from './select.js';
 
 export interface Shift {
   dx: number;
@@ -29,18 +30,24 @@ function largestPow2(n: number): number {
   return p;
 }
 
-function windowed(img: GreyFrame | FloatImage, w: number, h: number, x0: number, y0: number): Float64Array {
-  const out = new Float64Array(w * h * 2);
+/** A Hann taper of n points (separable: the 2-D window is the product of a row and a column taper). */
+function hann(n: number): Float64Array {
+  const t = new Float64Array(n);
+  for (let i = 0; i < n; i++) t[i] = 0.5 - 0.5 * Math.cos((2 * Math.PI * (i + 0.5)) / n);
+  return t;
+}
+
+/** The w x h crop at (x0, y0), mean removed and Hann-windowed, as a real image. */
+function windowed(img: GreyFrame | FloatImage, w: number, h: number, x0: number, y0: number, wx: Float64Array, wy: Float64Array): Float64Array {
+  const out = new Float64Array(w * h);
   const src = img.data;
+  const stride = img.width;
   let mean = 0;
-  for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) mean += src[(y0 + y) * img.width + x0 + x];
+  for (let y = 0; y < h; y++) for (let x = 0, p = (y0 + y) * stride + x0; x < w; x++, p++) mean += src[p];
   mean /= w * h;
   for (let y = 0; y < h; y++) {
-    const wy = 0.5 - 0.5 * Math.cos((2 * Math.PI * (y + 0.5)) / h);
-    for (let x = 0; x < w; x++) {
-      const wx = 0.5 - 0.5 * Math.cos((2 * Math.PI * (x + 0.5)) / w);
-      out[(y * w + x) * 2] = (src[(y0 + y) * img.width + x0 + x] - mean) * wx * wy;
-    }
+    const a = wy[y];
+    for (let x = 0, p = (y0 + y) * stride + x0; x < w; x++, p++) out[y * w + x] = (src[p] - mean) * wx[x] * a;
   }
   return out;
 }
@@ -101,19 +108,29 @@ export function estimateShift(reference: GreyFrame | FloatImage, current: GreyFr
   const h = largestPow2(reference.height);
   const x0 = (reference.width - w) >> 1;
   const y0 = (reference.height - h) >> 1;
-  const fa = fft2d(windowed(reference, w, h, x0, y0), w, h, false);
-  const first = correlate(fa, fft2d(windowed(current, w, h, x0, y0), w, h, false), w, h, true);
+  const wx = hann(w), wy = hann(h);
+  const fa = fft2dReal(windowed(reference, w, h, x0, y0, wx, wy), w, h);
+  const first = correlate(fa, fft2dReal(windowed(current, w, h, x0, y0, wx, wy), w, h), w, h);
   // A window fixed in place on both frames biases the peak towards zero shift. When the shift
   // is a pixel or more, a second pass windows the current frame where the content went (the
   // integer shift), so only the fractional part is left to estimate.
-  const ix = Math.max(-x0, Math.min(reference.width - w - x0, Math.round(first.dx)));
-  const iy = Math.max(-y0, Math.min(reference.height - h - y0, Math.round(first.dy)));
-  if (ix === 0 && iy === 0) return first;
-  const second = correlate(fa, fft2d(windowed(current, w, h, x0 + ix, y0 + iy), w, h, false), w, h, true);
+  const ix = Math.max(-x0, Math.min(reference.width - w - x0, first.px));
+  const iy = Math.max(-y0, Math.min(reference.height - h - y0, first.py));
+  if (ix === 0 && iy === 0) return refine(first);
+  const second = refine(correlate(fa, fft2dReal(windowed(current, w, h, x0 + ix, y0 + iy, wx, wy), w, h), w, h));
   return { dx: second.dx + ix, dy: second.dy + iy, confidence: second.confidence };
 }
 
-function correlate(fa: Float64Array, fb: Float64Array, w: number, h: number, refine: boolean): Shift {
+interface Peak {
+  spec: Float64Array;
+  w: number;
+  h: number;
+  px: number;
+  py: number;
+  peakNorm: number;
+}
+
+function correlate(fa: Float64Array, fb: Float64Array, w: number, h: number): Peak {
   const spec = new Float64Array(w * h * 2);
   const mags = new Float64Array(w * h);
   for (let i = 0; i < spec.length; i += 2) {
@@ -126,7 +143,7 @@ function correlate(fa: Float64Array, fb: Float64Array, w: number, h: number, ref
   // noise-dominated frequencies of a smooth natural scene the same say as the strong ones.
   // eps at the median magnitude halves the weight of a typical frequency and leaves strong
   // ones near unit weight.
-  const eps = Float64Array.from(mags).sort()[mags.length >> 1] * EPS_FACTOR + 1e-12;
+  const eps = upperMedian(mags) * EPS_FACTOR + 1e-12;
   let peakNorm = 0;
   for (let i = 0; i < spec.length; i += 2) {
     const k = 1 / (mags[i >> 1] + eps);
@@ -148,9 +165,11 @@ function correlate(fa: Float64Array, fb: Float64Array, w: number, h: number, ref
       }
     }
   }
-  const px = bx < w / 2 ? bx : bx - w;
-  const py = by < h / 2 ? by : by - h;
-  if (!refine) return { dx: px, dy: py, confidence: best / peakNorm };
+  return { spec, w, h, px: bx < w / 2 ? bx : bx - w, py: by < h / 2 ? by : by - h, peakNorm };
+}
+
+/** Sub-pixel refinement of an integer peak: the inverse DFT on a 0.1 px grid, then a parabola. */
+function refine({ spec, w, h, px, py, peakNorm }: Peak): Shift {
   // The integer peak is within half a pixel of the true one: +-1 px at 0.1 px steps.
   const steps = Array.from({ length: GRID }, (_, i) => (i - (GRID >> 1)) / 10);
   const grid = upsampledPeak(spec, w, h, steps.map((s) => px + s), steps.map((s) => py + s));

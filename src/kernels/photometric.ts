@@ -8,6 +8,7 @@
  * motion.
  */
 import { checkFrame, checkSameShape, type Frame } from './frame.js';
+import { upperMedian } from './select.js';
 
 export interface GainOffset {
   gain: number[];
@@ -70,11 +71,8 @@ function fitChannel(ref: Uint8Array, cur: Uint8Array, ch: number, c: number, val
   return [gain, offset];
 }
 
-/** Median by sorting a copy (inputs here are a few thousand values). */
-function median(values: Float64Array): number {
-  const s = Float64Array.from(values).sort();
-  return s[s.length >> 1];
-}
+/** The upper median, as sorting a copy would give it, by selection (select.ts). */
+const median = (values: Float64Array): number => upperMedian(values);
 
 /** Marks samples within 3 robust sigmas of the line; the sigma's median comes from a 1/8-level histogram. */
 function residualKeep(xs: Float64Array, ys: Float64Array, n: number, gain: number, offset: number, res: Float64Array, keep: Uint8Array): void {
