@@ -72,7 +72,15 @@ async function preflight(store: MoveStore, plan: PlannedMove[], to: string, copy
     if (inside(root, to)) throw pipelineError(PipelineErrorCode.targetInsideRoot, `${to}: holds the scanned folder ${root}; choose a folder that is not above it`);
   }
   for (const p of plan) if (await exists(p.dest)) throw pipelineError(PipelineErrorCode.nameClash, `${p.dest}: a file of that name is already in the set-aside folder; nothing was moved or overwritten`);
-  await fs.mkdir(to, { recursive: true });
+  try {
+    await fs.mkdir(to, { recursive: true });
+    // Write access is tried, not inferred from permission bits (root, read-only mounts, ACLs).
+    const probe = path.join(to, `.movesift-probe-${process.pid}`);
+    await fs.writeFile(probe, '');
+    await fs.rm(probe);
+  } catch (e) {
+    throw pipelineError(PipelineErrorCode.targetUnwritable, `${to}: cannot write there (${(e as NodeJS.ErrnoException).code ?? e}); nothing was moved. Choose a folder you can write to`);
+  }
   const target = await fs.stat(to);
   let needed = 0;
   for (const p of plan) {

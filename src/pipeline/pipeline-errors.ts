@@ -10,6 +10,7 @@ export const PipelineErrorCode = {
   sourceChanged: 'E_APPLY_SOURCE_CHANGED',
   sourceMissing: 'E_APPLY_SOURCE_MISSING',
   targetInsideRoot: 'E_APPLY_TARGET_INSIDE_ROOT',
+  targetUnwritable: 'E_APPLY_TARGET_UNWRITABLE',
   undoHashMismatch: 'E_UNDO_HASH_MISMATCH',
   undoMissing: 'E_UNDO_FILE_MISSING',
   unknownApply: 'E_UNKNOWN_APPLY',

@@ -7,6 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { makeRgb, type RgbFrame } from '../../src/kernels/frame.js';
 import { createMedianHistory, offerFrame } from '../../src/kernels/median-history.js';
 import { learningRate, startBackground, updateBackground } from '../../src/kernels/running-background.js';
+import { temporalMedian } from '../../src/kernels/temporal-median.js';
 
 function scene(w: number, h: number, square: boolean, seed: number): RgbFrame {
   const f = makeRgb(w, h);
@@ -35,6 +36,17 @@ describe('median history', () => {
     for (let i = 0; i < bg!.data.length; i += 97) {
       const v = last.map((f) => f.data[i]).sort((a, b) => a - b);
       expect(bg!.data[i]).toBe(v[2]);
+    }
+  });
+  it('kept incrementally, equals the temporal median of the samples at every step, odd and even counts', () => {
+    for (const samples of [1, 2, 5, 6, 31]) {
+      const h = createMedianHistory(10, samples);
+      const every = samples > 1 ? 10 / (samples - 1) : 10;
+      for (let i = 0; i < samples * 3; i++) {
+        const bg = offerFrame(h, scene(17, 9, i % 4 === 0, i * 7 + samples), i * every * 1.000001); // clear of float ties
+        expect(bg.data, `samples ${samples}, step ${i}`).toEqual(temporalMedian(h.samplesTaken).data);
+        expect(h.samplesTaken.length).toBe(Math.min(samples, i + 1));
+      }
     }
   });
   it('leaves no ghost once a subject that stayed 10 s of a 60 s window has gone; the running average does', () => {

@@ -6,7 +6,7 @@
  * mid-apply (SIGKILL) finished or reversed by the next run with every file in exactly one place.
  */
 import { createHash } from 'node:crypto';
-import { cpSync, existsSync, mkdirSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import { cpSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { spawnSync } from 'node:child_process';
 import path from 'node:path';
 import Database from 'better-sqlite3';
@@ -155,6 +155,72 @@ describe('movesift apply and undo', () => {
     expect(u.stderr).toContain('E_UNDO_HASH_MISMATCH');
     expect(existsSync(m.source)).toBe(false);
     expect(readFileSync(m.dest, 'utf8')).toBe('changed while set aside');
+  });
+
+  it('refuses a read-only set-aside folder before moving anything (a read-only tmpfs, when mountable)', () => {
+    const { cards, ledger, dir } = setup();
+    const ro = path.join(dir, 'ro');
+    mkdirSync(ro);
+    const mounted = spawnSync('mount', ['-t', 'tmpfs', '-o', 'size=1m,ro', 'tmpfs', ro]).status === 0;
+    if (!mounted) return console.log('skipped the read-only case: cannot mount a tmpfs here');
+    try {
+      const r = runCli(['apply', ledger, '--to', ro]);
+      expect(r.code).toBe(2);
+      expect(r.stderr).toContain('cannot write there');
+      expect(readdirSync(cards)).toHaveLength(32);
+      expect(rows<{ n: number }>(ledger, 'SELECT count(*) AS n FROM moves')[0].n).toBe(0);
+    } finally {
+      spawnSync('umount', [ro]);
+    }
+  });
+
+  it('recovers crashes injected at each step: before the move, mid-copy, between copy and remove, mid-undo', () => {
+    const { cards, ledger, hashes } = setup();
+    const aside = tempDirOn('/dev/shm');
+    expect(runCli(['apply', ledger, '--to', aside]).code).toBe(0);
+    const moved = rows<{ id: number; source: string; dest: string }>(ledger, "SELECT id, source, dest FROM moves WHERE state = 'moved' ORDER BY id");
+    expect(moved.length).toBeGreaterThanOrEqual(4);
+    const [a, b, c, d] = moved;
+    const db = new Database(ledger);
+    const set = db.prepare('UPDATE moves SET state = ? WHERE id = ?');
+    // a: crashed after journalling "moving", before the file was touched: it is back home, not copied yet.
+    cpSync(a.dest, a.source);
+    rmSync(a.dest);
+    set.run('moving', a.id);
+    // b: crashed mid-copy: a partial temporary file beside the destination, the original at home.
+    cpSync(b.dest, b.source);
+    writeFileSync(b.dest + '.movesift-part', readFileSync(b.dest).subarray(0, 100));
+    rmSync(b.dest);
+    set.run('moving', b.id);
+    // c: crashed between the verified copy and removing the original: the file is in both places.
+    cpSync(c.dest, c.source);
+    set.run('moving', c.id);
+    // d: an undo crashed after putting the file home and before removing the set-aside copy.
+    cpSync(d.dest, d.source);
+    set.run('restoring', d.id);
+    db.close();
+    // The next run (a dry run is enough) settles every one of them before doing anything else.
+    const dry = runCli(['apply', ledger, '--to', aside, '--dry-run']);
+    expect(dry.code, dry.stderr).toBe(0);
+    expect(dry.stdout).toContain('An earlier run was interrupted: 2 move(s) finished, 2 left undone');
+    const state = new Map(rows<{ id: number; state: string }>(ledger, 'SELECT id, state FROM moves').map((m) => [m.id, m.state]));
+    expect(state.get(a.id)).toBe('failed'); // reversed: the file never left home
+    expect(existsSync(a.source) && !existsSync(a.dest)).toBe(true);
+    expect(state.get(b.id)).toBe('failed'); // reversed: the partial copy is gone, the original home
+    expect(existsSync(b.dest + '.movesift-part') || existsSync(b.dest)).toBe(false);
+    expect(state.get(c.id)).toBe('moved'); // finished: the original removed once the copy checked out
+    expect(existsSync(c.source)).toBe(false);
+    expect(state.get(d.id)).toBe('restored'); // the undo finished: the set-aside copy removed
+    expect(existsSync(d.dest)).toBe(false);
+    // a, b and d are set-aside candidates again; this run moves them: every file whole, in one place.
+    expect(runCli(['apply', ledger, '--to', aside]).code).toBe(0);
+    for (const m of moved) {
+      const home = existsSync(m.source), away = existsSync(m.dest);
+      expect(home !== away, m.source).toBe(true);
+      expect(sha(home ? m.source : m.dest)).toBe(hashes.get(path.basename(m.source)));
+    }
+    expect(runCli(['undo', ledger]).code).toBe(0);
+    for (const [f, h] of hashes) expect(sha(path.join(cards, f))).toBe(h);
   });
 
   it('after a SIGKILL mid-apply, the next run leaves every file in exactly one place, whole', async () => {

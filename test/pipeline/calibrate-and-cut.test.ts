@@ -69,24 +69,51 @@ describe('movesift calibrate', () => {
 
 describe('movesift cut', () => {
   const ledger = path.join(tempDir('movesift-cut-'), 'k.ledger');
-  const probe = (file: string): number => Number(spawnSync(resolveBinaries().ffprobe, ['-v', 'error', '-show_entries', 'format=duration', '-of', 'csv=p=0', file], { encoding: 'utf8' }).stdout.trim());
+  const { ffmpeg, ffprobe } = resolveBinaries();
+  const probe = (file: string): number => Number(spawnSync(ffprobe, ['-v', 'error', '-show_entries', 'format=duration', '-of', 'csv=p=0', file], { encoding: 'utf8' }).stdout.trim());
+  const source = path.join(ROOT, 'sample-media/reef-station/reef-drop-01.mp4');
+  // Keyframe times of the source, from ffprobe: a stream copy can only start on one of these.
+  const keyframes = spawnSync(ffprobe, ['-v', 'error', '-select_streams', 'v:0', '-skip_frame', 'nokey', '-show_entries', 'frame=pts_time', '-of', 'csv=p=0', source], { encoding: 'utf8' }).stdout.split(/[\s,]+/).filter(Boolean).map(Number);
+  const gop = Math.max(...keyframes.slice(1).map((k, i) => k - keyframes[i]), 0.5);
+  /** The first decoded frame of a file, or of the source at time t, as raw RGB. */
+  const frameAt = (file: string, t?: number): Buffer =>
+    spawnSync(ffmpeg, ['-v', 'error', ...(t === undefined ? [] : ['-ss', t.toFixed(3)]), '-i', file, '-frames:v', '1', '-f', 'rawvideo', '-pix_fmt', 'rgb24', '-'], { maxBuffer: 64 << 20 }).stdout;
 
-  it.each([[false], [true]])('writes each activity window as a file with an index and a MaxN sheet (exact: %s)', (exact) => {
+  it.each([[false], [true]])('writes each activity window as a file matching the ledger, within one GOP (exact: %s)', (exact) => {
     if (exact === false) expect(runCli(['scan', path.join(ROOT, 'sample-media/reef-station'), '--ledger', ledger]).code).toBe(0);
     const out = path.join(path.dirname(ledger), exact ? 'exact' : 'copy');
     const r = runCli(['cut', ledger, '--out', out, ...(exact ? ['--exact'] : [])]);
     expect(r.code, r.stderr).toBe(0);
-    const report = JSON.parse(runCli(['report', ledger]).stdout) as { events: Array<{ kind: string; windows: Array<{ start_s: number; end_s: number }> }> };
+    const report = JSON.parse(runCli(['report', ledger]).stdout) as { events: Array<{ kind: string; windows: Array<{ start_s: number; end_s: number; score: number }> }> };
     const windows = report.events.find((e) => e.kind === 'clip')!.windows;
+    expect(windows.length).toBeGreaterThan(0);
     const [head, ...index] = parseCsv(readFileSync(path.join(out, 'windows-index.csv'), 'utf8'));
-    expect(index).toHaveLength(windows.length);
+    const col = (row: string[], name: string) => row[head.indexOf(name)];
+    expect(index.map((row) => [Number(col(row, 'start_s')), Number(col(row, 'end_s')), Number(col(row, 'score'))])).toEqual(windows.map((w) => [w.start_s, w.end_s, w.score]));
     const [, ...sheet] = parseCsv(readFileSync(path.join(out, 'maxn-sheet.csv'), 'utf8'));
     expect(sheet).toHaveLength(windows.length);
     index.forEach((row, i) => {
-      const d = probe(path.join(out, row[head.indexOf('file')]));
+      const file = path.join(out, col(row, 'file'));
       const want = windows[i].end_s - windows[i].start_s;
-      if (exact) expect(Math.abs(d - want)).toBeLessThan(0.15);
-      else expect(d).toBeGreaterThanOrEqual(want - 0.15);
+      const d = probe(file);
+      if (exact) {
+        expect(Math.abs(d - want)).toBeLessThan(0.15);
+        // Re-encoded, so not byte-equal: its first frame is nearer the source frame at the window
+        // start than any source frame up to half a second either side (the clip runs at 8 fps).
+        const first = frameAt(file);
+        const mad = (b: Buffer) => b.reduce((a, v, k) => a + Math.abs(v - first[k]), 0) / b.length;
+        const at = (dt: number) => mad(frameAt(source, Math.max(0, windows[i].start_s + dt)));
+        const here = at(0);
+        expect(here).toBeLessThan(3);
+        for (const dt of [-0.5, -0.25, 0.25, 0.5]) if (windows[i].start_s + dt >= 0) expect(here).toBeLessThanOrEqual(at(dt));
+      } else {
+        // A copy starts on the last keyframe at or before the window: never late, at most a GOP early.
+        const key = Math.max(...keyframes.filter((k) => k <= windows[i].start_s + 1e-3));
+        expect(windows[i].start_s - key).toBeLessThanOrEqual(gop);
+        expect(d).toBeGreaterThanOrEqual(want - 0.15);
+        expect(d).toBeLessThanOrEqual(want + gop + 0.15);
+        expect(frameAt(file).equals(frameAt(source, key))).toBe(true); // its first frame is that keyframe
+      }
     });
   }, 120_000);
 });
