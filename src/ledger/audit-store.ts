@@ -2,6 +2,7 @@
  * The statements behind audits: the set-aside population, a drawn audit and its items (one
  * transaction), the append-only answers (the latest per item counts), and their listing.
  */
+import type { AuditItem } from '../shared/review-api.js';
 import type { Ledger } from './open-ledger.js';
 
 export interface AuditRow {
@@ -16,16 +17,7 @@ export interface AuditRow {
   strata: string;
 }
 
-export interface AuditItemRow {
-  position: number;
-  event_id: string;
-  stratum: number;
-  score: number | null;
-  verdict: string | null;
-  animal: number | null;
-  who: string | null;
-  at: string | null;
-}
+export type AuditItemRow = AuditItem;
 
 export function createAuditStore(db: Ledger) {
   const s = {

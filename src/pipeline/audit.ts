@@ -19,6 +19,7 @@ import { clopperPearson, clopperPearsonUpper, sampleSizeForZeroMisses } from '..
 import { hypergeometricBounds } from '../shared/stats/hypergeometric.js';
 import { mulberry32, sampleWithoutReplacement } from '../shared/stats/seeded-random.js';
 import { MovesiftError } from '../shared/errors.js';
+import type { AuditReport } from '../shared/review-api.js';
 
 export const AuditErrorCode = { nothingSetAside: 'E_AUDIT_NOTHING_SET_ASIDE', unknownAudit: 'E_AUDIT_UNKNOWN', notInAudit: 'E_AUDIT_NOT_SAMPLED' } as const;
 
@@ -89,29 +90,7 @@ export function answerAudit(ledger: string, auditId: number, answers: Array<{ ev
   }
 }
 
-export interface AuditReport {
-  id: number;
-  createdAt: string;
-  who: string | null;
-  seed: number;
-  population: number;
-  sampleSize: number;
-  answered: number;
-  animals: number;
-  tolerance: number;
-  alpha: number;
-  /** Share of set-aside events holding an animal: estimate and two-sided interval at 1 - alpha. */
-  share: { estimate: number; lower: number; upper: number; method: 'clopper-pearson' | 'hypergeometric' };
-  /** One-sided upper bound (1 - alpha) on that share: what the pass/fail reads. */
-  shareUpperOneSided: number;
-  /** Set-aside events estimated to hold an animal (share times population), with the interval. */
-  missedEvents: { estimate: number; lower: number; upper: number };
-  verdict: 'pass' | 'fail' | 'incomplete';
-  /** Checks needed to pass with no animal found at this tolerance and alpha. */
-  zeroMissSampleSize: number;
-  strata: Array<Stratum & { answered: number; animals: number }>;
-  items: AuditItemRow[];
-}
+export type { AuditReport };
 
 export function reportAudit(audit: AuditRow, items: AuditItemRow[]): AuditReport {
   const answered = items.filter((i) => i.animal !== null);

@@ -13,24 +13,12 @@ import { createCalibrationStore } from '../ledger/calibration-store.js';
 import { MOTION_MODEL } from '../kernels/model.js';
 import { clopperPearsonLower, sampleSizeForZeroMisses } from '../shared/stats/binomial.js';
 import { MovesiftError } from '../shared/errors.js';
+import type { CalibrationResult } from '../shared/review-api.js';
 
 export const CalibrationErrorCode = { tooFewAnimals: 'E_CALIBRATE_TOO_FEW_ANIMALS' } as const;
 const ALPHA = 0.05;
 
-export interface Calibration {
-  target: number;
-  animals: number;
-  empties: number;
-  threshold: number;
-  recall: number;
-  recallLower: number;
-  /** Events scored below the threshold: what would be likely-blank (all events, decided or not). */
-  wouldBeBlank: number;
-  blankNow: number;
-  /** Undecided events whose verdict the threshold changes. */
-  undecidedChanges: number;
-  applied: boolean;
-}
+export type Calibration = CalibrationResult;
 
 export function calibrate(ledger: string, o: { recall: number; apply?: boolean; who?: string | null }): Calibration {
   const db = openLedger(ledger);

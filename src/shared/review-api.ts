@@ -207,6 +207,8 @@ export interface AuditReport {
   missedEvents: { estimate: number; lower: number; upper: number };
   verdict: 'pass' | 'fail' | 'incomplete';
   zeroMissSampleSize: number;
+  /** Score bands of the draw, with what was found in each (one band for a simple random sample). */
+  strata: Array<{ band: number; scoreFrom: number; scoreTo: number; population: number; sample: number; answered: number; animals: number }>;
   items: AuditItem[];
 }
 

@@ -12,6 +12,7 @@ import { scan } from '../../src/pipeline/scan.js';
 import { launchChromium } from '../helpers/browser.js';
 import { ROOT, runCli, tempDir } from '../helpers/cli.js';
 import { startReview, type RunningReview } from '../helpers/review-server.js';
+import { until } from '../helpers/until.js';
 
 const SHOTS = path.join(ROOT, 'test-artifacts');
 const dir = tempDir('movesift-e2e-act-');
@@ -20,14 +21,6 @@ const ledger = path.join(dir, 'act.ledger');
 let review: RunningReview;
 let browser: Browser;
 let page: Page;
-async function until(what: string, f: () => Promise<boolean>, ms = 20_000): Promise<void> {
-  const end = Date.now() + ms;
-  while (Date.now() < end) {
-    if (await f().catch(() => false)) return;
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  throw new Error(`timed out waiting for ${what}`);
-}
 
 beforeAll(async () => {
   cpSync(path.join(ROOT, 'sample-media/ridge-trail'), path.join(cards, 'ridge-trail'), { recursive: true });

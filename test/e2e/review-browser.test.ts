@@ -14,6 +14,7 @@ import { scan } from '../../src/pipeline/scan.js';
 import { launchChromium } from '../helpers/browser.js';
 import { ROOT, tempDir } from '../helpers/cli.js';
 import { startReview, type RunningReview } from '../helpers/review-server.js';
+import { until } from '../helpers/until.js';
 
 const SHOTS = path.join(ROOT, 'test-artifacts');
 let ledger: string;
@@ -31,15 +32,6 @@ function ledgerRows<T>(sql: string, ...args: unknown[]): T[] {
 }
 const latest = () => new Map(ledgerRows<{ event_id: string; decision: string | null }>('SELECT event_id, decision FROM latest_decisions').map((r) => [r.event_id, r.decision]));
 const text = (sel: string) => page.locator(sel).first().textContent();
-/** Polls by timer: the app's pages re-render on animation frames, which stall Playwright's own waits in headless mode. */
-async function until(what: string, f: () => Promise<boolean>, ms = 15_000): Promise<void> {
-  const end = Date.now() + ms;
-  while (Date.now() < end) {
-    if (await f().catch(() => false)) return;
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  throw new Error(`timed out waiting for ${what}`);
-}
 const shownCount = async () => Number((await text('[data-testid=shown-count]'))?.replace(/\D/g, '') || NaN);
 
 beforeAll(async () => {
