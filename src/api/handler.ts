@@ -56,6 +56,7 @@ export function createHandler(o: HandlerOptions): Handler {
   const workers = o.scanWorkers ?? Math.max(1, Math.min(8, os.availableParallelism() - 1));
 
   function openFile(file: string, create: boolean): void {
+    if (file === open?.file) return; // already open
     if (jobs.running()) throw new HttpError(409, ApiErrorCode.scanRunning, 'a scan is running; open another ledger when it has finished or been stopped');
     if (tasks.running()) throw new HttpError(409, ApiErrorCode.taskRunning, 'an apply, undo or cut is running; open another ledger when it has finished');
     if (create && existsSync(file) && file !== open?.file) {
@@ -102,7 +103,10 @@ export function createHandler(o: HandlerOptions): Handler {
       const body = await readJson(req);
       if (!Array.isArray(body.folders) || body.folders.length === 0 || body.folders.length > 64) throw badRequest('folders: wanted 1-64 folder paths');
       const folders = body.folders.map((f, i) => userPath(`folders[${i}]`, f));
-      if (body.ledger !== undefined) openFile(userPath('ledger', body.ledger), !existsSync(userPath('ledger', body.ledger)));
+      if (body.ledger !== undefined) {
+        const file = userPath('ledger', body.ledger);
+        openFile(file, !existsSync(file));
+      }
       if (!open) throw new HttpError(409, ApiErrorCode.noLedger, 'no ledger is open: give one to scan into');
       for (const f of folders) if (!existsSync(f)) throw new HttpError(400, 'E_FOLDER_MISSING', `${f}: no such folder`);
       return json(jobs.start({ ledger: open.file, folders, flow: body.flow === true, workers }), 202);

@@ -88,7 +88,7 @@ describe('audits, calibration and exports over the API', () => {
     expect((await call('/api/audits/999')).status).toBe(404);
     expect((await (await call('/api/audits')).json()).length).toBe(1);
   });
-  it('calibration refuses with too few labels; exports refuse what would be invalid', async () => {
+  it('calibration refuses with too few labels; exports and cuts refuse what they cannot do', async () => {
     const cal = await call('/api/calibrate', { recall: 0.99 });
     expect(cal.status).toBe(409);
     expect((await cal.json()).code).toBe('E_CALIBRATE_TOO_FEW_ANIMALS');
@@ -97,6 +97,9 @@ describe('audits, calibration and exports over the API', () => {
     expect((await dp.json()).code).toBe('E_EXPORT_INCOMPLETE');
     expect((await call('/api/export', { format: 'xml', out: path.join(dir, 'x') })).status).toBe(400);
     expect((await call('/api/export', { format: 'camtrap-dp', out: path.join(dir, 'x'), utcOffset: 'CET' })).status).toBe(400);
+    const cut = await call('/api/cut', { out: path.join(dir, 'clips') }); // this ledger holds no clip
+    expect(cut.status).toBe(409);
+    expect((await call('/api/cut', {})).status).toBe(400);
     const csv = await call('/api/export', { format: 'csv', out: path.join(dir, 'out.csv') });
     expect(csv.status).toBe(200);
     expect(existsSync(path.join(dir, 'out.csv'))).toBe(true);

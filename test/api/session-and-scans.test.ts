@@ -88,7 +88,7 @@ describe('a scan started over the API', () => {
     const again = await call(h, '/api/scans', { folders: [media] });
     expect(again.status).toBe(409);
     expect((await again.json()).code).toBe('E_SCAN_RUNNING');
-    expect((await call(h, '/api/session', { ledger })).status).toBe(409); // no switching ledgers mid-scan
+    expect((await call(h, '/api/session', { ledger: path.join(dir, 'other.ledger'), create: true })).status).toBe(409); // no switching ledgers mid-scan
     const states = await readEvents(progress, (s) => s.status !== 'running');
     const last = states[states.length - 1];
     expect(last.status).toBe('done');
