@@ -167,6 +167,18 @@ describe('review app in Chromium', () => {
     await page.keyboard.press('Escape');
   });
 
+  it('filters by a score range stepped from the keyboard', async () => {
+    const scores = ledgerRows<{ score: number }>('SELECT score FROM analyses').map((r) => r.score);
+    for (let i = 0; i < 10; i++) await page.keyboard.press('.'); // at least 0.50
+    for (let i = 0; i < 1; i++) await page.keyboard.press('-'); // at most 0.95
+    const want = scores.filter((x) => x >= 0.5 && x <= 0.95).length;
+    await until('the score range', async () => (await page.locator('[data-chip="score at least"] b').textContent()) === '0.50' && (await page.locator('[data-chip="score at most"] b').textContent()) === '0.95');
+    await until('the range applied', async () => (want === 0 ? (await page.locator('.empty-note').count()) === 1 : (await shownCount()) === want));
+    for (let i = 0; i < 10; i++) await page.keyboard.press(',');
+    await page.keyboard.press('=');
+    await until('every score again', async () => (await shownCount()) === 25);
+  });
+
   it('lists every key in the help overlay', async () => {
     await page.keyboard.press('?');
     await until('help', async () => (await page.locator('.dialog-help').count()) === 1);

@@ -161,6 +161,11 @@ export function App({ initial }: { initial: SessionInfo }) {
         const up = Math.round(((filter.scoreMax ?? 1) + SCORE_STEP) * 100) / 100;
         return changeFilter({ ...filter, scoreMax: up >= 1 ? undefined : up });
       }
+      case 'floor-lower': {
+        const down = Math.round(((filter.scoreMin ?? 0) - SCORE_STEP) * 100) / 100;
+        return changeFilter({ ...filter, scoreMin: down <= 0 ? undefined : down });
+      }
+      case 'floor-raise': return changeFilter({ ...filter, scoreMin: Math.min(1 - SCORE_STEP, Math.round(((filter.scoreMin ?? 0) + SCORE_STEP) * 100) / 100) });
       case 'toggle-order': return changeFilter({ ...filter, sort: filter.sort === 'time' ? 'score' : 'time' });
       case 'reverse-order': return changeFilter({ ...filter, desc: !filter.desc });
       case 'toggle-heat': return setHeat((h) => !h);

@@ -32,6 +32,7 @@ export function filterQuery(f: ViewFilter): URLSearchParams {
   if (f.decision) q.set('decision', f.decision);
   if (f.light) q.set('light', f.light);
   if (f.deployment) q.set('deployment', f.deployment);
+  if (f.scoreMin !== undefined) q.set('score_min', String(f.scoreMin));
   if (f.scoreMax !== undefined) q.set('score_max', String(f.scoreMax));
   q.set('sort', f.sort);
   q.set('order', f.desc ? 'desc' : 'asc');

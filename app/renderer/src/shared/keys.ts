@@ -11,7 +11,7 @@ export type Action =
   | 'toggle-select' | 'extend-left' | 'extend-right' | 'extend-up' | 'extend-down' | 'select-shown' | 'clear-selection'
   | 'keep' | 'set-aside' | 'undo' | 'open'
   | 'verdict-blank' | 'verdict-unsure' | 'verdict-motion' | 'verdict-any'
-  | 'cycle-decision' | 'cycle-light' | 'cycle-deployment' | 'score-lower' | 'score-raise' | 'toggle-order' | 'reverse-order'
+  | 'cycle-decision' | 'cycle-light' | 'cycle-deployment' | 'score-lower' | 'score-raise' | 'floor-lower' | 'floor-raise' | 'toggle-order' | 'reverse-order'
   | 'toggle-heat' | 'help' | 'close' | 'start-screen'
   | 'frame-prev' | 'frame-next' | 'event-prev' | 'event-next' | 'window-prev' | 'window-next' | 'play-pause'
   | 'confirm-yes' | 'confirm-no'
@@ -46,6 +46,7 @@ export const KEYS: readonly KeyBinding[] = [
   { modes: ['grid'], keys: ['p'], action: 'cycle-deployment', text: 'deployment filter: next deployment, then any' },
   { modes: ['grid'], keys: ['-'], action: 'score-lower', text: 'show scores at most 0.05 lower' },
   { modes: ['grid'], keys: ['=', '+'], action: 'score-raise', text: 'show scores at most 0.05 higher (to every score)' },
+  { modes: ['grid'], keys: [',', '.'], action: 'floor-lower', text: 'show scores at least 0.05 lower / higher' },
   { modes: ['grid'], keys: ['o'], action: 'toggle-order', text: 'order by time or by score' },
   { modes: ['grid'], keys: ['r'], action: 'reverse-order', text: 'reverse the order' },
   { modes: ['grid', 'detail', 'audit'], keys: ['h'], action: 'toggle-heat', text: 'change overlay on or off' },
@@ -73,6 +74,7 @@ const PAIRED: Partial<Record<Action, Action[]>> = {
   'extend-left': ['extend-left', 'extend-right', 'extend-up', 'extend-down'],
   'move-first': ['move-first', 'move-last'],
   'page-up': ['page-up', 'page-down'],
+  'floor-lower': ['floor-lower', 'floor-raise'],
   'frame-prev': ['frame-prev', 'frame-next'],
   'event-prev': ['event-prev', 'event-next'],
   'window-prev': ['window-prev', 'window-next'],

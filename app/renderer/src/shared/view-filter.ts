@@ -6,7 +6,8 @@ export interface ViewFilter {
   decision?: Decision | 'none';
   light?: Light;
   deployment?: string;
-  /** Show events scored at most this (stepped by keys); undefined shows every score. */
+  /** Show events scored at least / at most these (stepped by keys); undefined: no bound. */
+  scoreMin?: number;
   scoreMax?: number;
   sort: 'time' | 'score';
   desc: boolean;
@@ -14,7 +15,7 @@ export interface ViewFilter {
 
 export const DEFAULT_FILTER: ViewFilter = { sort: 'time', desc: false };
 
-export const filterKey = (f: ViewFilter): string => JSON.stringify([f.verdict, f.decision, f.light, f.deployment, f.scoreMax, f.sort, f.desc]);
+export const filterKey = (f: ViewFilter): string => JSON.stringify([f.verdict, f.decision, f.light, f.deployment, f.scoreMin, f.scoreMax, f.sort, f.desc]);
 
 /** The next value in a fixed cycle (undefined = "any"). */
 export function cycle<T>(values: readonly (T | undefined)[], current: T | undefined): T | undefined {

@@ -39,6 +39,7 @@ export function Toolbar({ ledgerName, filter, total, selected, heat, scan, onHel
         <Chip label="decision" value={decision} keyHint="d" active={filter.decision !== undefined} />
         <Chip label="light" value={filter.light ? LIGHT_LABEL[filter.light] : 'any'} keyHint="n" active={!!filter.light} />
         <Chip label="deployment" value={filter.deployment ?? 'any'} keyHint="p" active={!!filter.deployment} />
+        <Chip label="score at least" value={filter.scoreMin === undefined ? 'any' : filter.scoreMin.toFixed(2)} keyHint=", ." active={filter.scoreMin !== undefined} />
         <Chip label="score at most" value={filter.scoreMax === undefined ? 'any' : filter.scoreMax.toFixed(2)} keyHint="- +" active={filter.scoreMax !== undefined} />
         <Chip label="order" value={`${filter.sort} ${filter.desc ? '↓' : '↑'}`} keyHint="o r" active={false} />
         <Chip label="overlay" value={heat ? 'on' : 'off'} keyHint="h" active={heat} />
