@@ -13,9 +13,12 @@ export function absDiff<T extends Frame>(a: T, b: T, out?: Uint8Array): T {
   const dst = out ?? new Uint8Array(n);
   const x = a.data;
   const y = b.data;
+  // Branch-free |d| (sign mask): the sign of a noise difference is a coin toss, and a
+  // mispredicted branch per byte cost three times the arithmetic.
   for (let i = 0; i < n; i++) {
     const d = x[i] - y[i];
-    dst[i] = d < 0 ? -d : d;
+    const s = d >> 31;
+    dst[i] = (d ^ s) - s;
   }
   return { ...a, data: dst };
 }

@@ -1,9 +1,8 @@
 /**
- * 2-D complex FFT over power-of-two sizes on top of the radix-4 1-D transform of the npm package
- * fft.js: rows transformed, the matrix transposed, rows transformed again, transposed back (the
- * transposes keep every 1-D transform on contiguous memory, which is what makes it fast in
- * JavaScript). Data: interleaved re/im, row-major. fft2dReal takes a real image and uses
- * fft.js's real-input row transform, half the work of the first pass.
+ * 2-D FFT of real images over power-of-two sizes, on top of the radix-4 1-D transforms of the
+ * npm package fft.js. Only the non-redundant half of the spectrum is computed and kept (a real
+ * image's spectrum is Hermitian), stored transposed so that every column transform runs on
+ * contiguous memory, which is what makes it fast in JavaScript.
  */
 import FFT from 'fft.js';
 import { invalidArgument } from '../shared/errors.js';
@@ -17,56 +16,105 @@ function checkSize(width: number, height: number): void {
   if (!isPowerOfTwo(height)) throw invalidArgument('height', 'power of two >= 2', height);
 }
 
-/** Complex transpose of a w x h interleaved matrix into h x w. */
-function transpose(src: Float64Array, w: number, h: number, dst: Float64Array): void {
-  for (let y = 0; y < h; y++) {
-    for (let x = 0; x < w; x++) {
-      const s = (y * w + x) * 2;
-      const d = (x * h + y) * 2;
-      dst[d] = src[s];
-      dst[d + 1] = src[s + 1];
-    }
+/**
+ * Scratch and transforms for one size, reused across calls (a scan runs thousands of frames
+ * of the same size; allocating per call showed up as garbage-collection time).
+ */
+interface HalfPlan {
+  w: number;
+  h: number;
+  fw: FFT;
+  fh: FFT;
+  rowOut: Float64Array;
+  colIn: Float64Array;
+  colOut: Float64Array;
+  colsDone?: Float64Array;
+}
+const plans = new Map<number, HalfPlan>();
+function plan(w: number, h: number): HalfPlan {
+  const key = w * 65536 + h;
+  let p = plans.get(key);
+  if (!p) {
+    p = { w, h, fw: new FFT(w), fh: new FFT(h), rowOut: new Float64Array(2 * w), colIn: new Float64Array(2 * Math.max(w, h)), colOut: new Float64Array(2 * Math.max(w, h)) };
+    plans.set(key, p);
   }
+  return p;
 }
 
-/** Transforms every row of a (rows x n) interleaved matrix in place. */
-function rows(data: Float64Array, n: number, count: number, inverse: boolean): void {
-  const f = new FFT(n);
-  const tmp = new Float64Array(2 * n);
-  for (let r = 0; r < count; r++) {
-    const row = data.subarray(r * 2 * n, (r + 1) * 2 * n);
-    if (inverse) f.inverseTransform(tmp, row);
-    else f.transform(tmp, row);
-    row.set(tmp);
-  }
-}
-
-function columnsThenBack(data: Float64Array, width: number, height: number, inverse: boolean): Float64Array {
-  const t = new Float64Array(data.length);
-  transpose(data, width, height, t);
-  rows(t, height, width, inverse);
-  transpose(t, height, width, data);
-  return data;
-}
-
-export function fft2d(data: Float64Array, width: number, height: number, inverse: boolean): Float64Array {
-  checkSize(width, height);
-  const out = Float64Array.from(data);
-  rows(out, width, height, inverse);
-  return columnsThenBack(out, width, height, inverse);
-}
-
-/** Forward transform of a real width x height image (row-major); returns the full complex spectrum. */
-export function fft2dReal(real: Float64Array, width: number, height: number): Float64Array {
+/**
+ * Forward transform of a real width x height image, keeping only the non-redundant half of the
+ * spectrum (a real image's spectrum is Hermitian: F(-u, -v) = conj F(u, v)). The result is stored
+ * transposed, one contiguous row of `height` complex values per horizontal frequency
+ * u = 0..width/2: element (u, v) at index 2 * (u * height + v). Half the column work of fft2dReal.
+ */
+export function fft2dRealHalf(real: Float64Array, width: number, height: number, out?: Float64Array): Float64Array {
   checkSize(width, height);
   if (real.length !== width * height) throw invalidArgument('real.length', String(width * height), real.length);
-  const out = new Float64Array(width * height * 2);
-  const f = new FFT(width);
-  const tmp = new Float64Array(2 * width);
+  const p = plan(width, height);
+  const cols = (width >> 1) + 1;
+  const dst = out && out.length === cols * height * 2 ? out : new Float64Array(cols * height * 2);
+  const row = p.rowOut;
+  // Rows: real transforms, scattered straight into the transposed layout.
   for (let y = 0; y < height; y++) {
-    f.realTransform(tmp, real.subarray(y * width, (y + 1) * width));
-    f.completeSpectrum(tmp);
-    out.set(tmp, y * 2 * width);
+    p.fw.realTransform(row, real.subarray(y * width, (y + 1) * width));
+    for (let u = 0; u < cols; u++) {
+      const d = 2 * (u * height + y);
+      dst[d] = row[2 * u];
+      dst[d + 1] = row[2 * u + 1];
+    }
   }
-  return columnsThenBack(out, width, height, false);
+  // Columns: each is contiguous now.
+  const n2 = 2 * height;
+  const tmp = p.colOut.subarray(0, n2);
+  for (let u = 0; u < cols; u++) {
+    const col = dst.subarray(u * n2, (u + 1) * n2);
+    p.fh.transform(tmp, col);
+    col.set(tmp);
+  }
+  return dst;
+}
+
+/**
+ * Inverse of fft2dRealHalf: from the transposed half spectrum back to the real width x height
+ * image (scaled by 1 / (width * height), like the complex inverse). The input is not changed.
+ * Two image rows share one complex inverse transform (row a in the real part, row b in the
+ * imaginary part), the usual two-for-one trick for real outputs.
+ */
+export function ifft2dHalfToReal(half: Float64Array, width: number, height: number, out?: Float64Array): Float64Array {
+  checkSize(width, height);
+  const cols = (width >> 1) + 1;
+  if (half.length !== cols * height * 2) throw invalidArgument('half.length', String(cols * height * 2), half.length);
+  const p = plan(width, height);
+  const n2 = 2 * height;
+  // Columns first (inverse over v), into a scratch of the same transposed layout.
+  if (!p.colsDone || p.colsDone.length !== half.length) p.colsDone = new Float64Array(half.length);
+  const colsDone = p.colsDone;
+  for (let u = 0; u < cols; u++) p.fh.inverseTransform(colsDone.subarray(u * n2, (u + 1) * n2), half.subarray(u * n2, (u + 1) * n2));
+  const dst = out && out.length === width * height ? out : new Float64Array(width * height);
+  const z = p.colIn.subarray(0, 2 * width);
+  const zt = p.rowOut;
+  for (let y = 0; y < height; y += 2) {
+    const y2 = y + 1;
+    // Z(u) = A(u) + i B(u) for the full row spectrum, A and B Hermitian in u:
+    // A(width - u) = conj A(u).
+    for (let u = 0; u < cols; u++) {
+      const ia = 2 * (u * height + y);
+      const ib = ia + 2;
+      const ar = colsDone[ia], ai = colsDone[ia + 1];
+      const br = colsDone[ib], bi = colsDone[ib + 1];
+      z[2 * u] = ar - bi;
+      z[2 * u + 1] = ai + br;
+      if (u > 0 && u < cols - 1) {
+        const m = 2 * (width - u);
+        z[m] = ar + bi;
+        z[m + 1] = br - ai;
+      }
+    }
+    p.fw.inverseTransform(zt, z);
+    for (let x = 0; x < width; x++) {
+      dst[y * width + x] = zt[2 * x];
+      dst[y2 * width + x] = zt[2 * x + 1];
+    }
+  }
+  return dst;
 }

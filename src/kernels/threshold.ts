@@ -16,7 +16,10 @@ export function thresholdBinary(src: GreyFrame, thresh: number, maxval = 255): G
   const out = makeGrey(src.width, src.height);
   const s = src.data;
   const d = out.data;
-  for (let i = 0; i < s.length; i++) d[i] = s[i] > thresh ? maxval : 0;
+  // s > thresh  <=>  s >= floor(thresh) + 1 for integer s; the comparison as a sign mask, without
+  // a branch (a change image crosses the threshold unpredictably).
+  const last = Math.floor(thresh);
+  for (let i = 0; i < s.length; i++) d[i] = ((last - s[i]) >> 31) & maxval;
   return out;
 }
 

@@ -4,6 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { makeGrey, makeRgb, type GreyFrame } from '../../src/kernels/frame.js';
+import { fft2dRealHalf, ifft2dHalfToReal } from '../../src/kernels/fft2d.js';
 import { estimateShift } from '../../src/kernels/phase-correlate.js';
 import { translateBilinear } from '../../src/kernels/translate.js';
 import { applyGainOffset, fitGainOffset } from '../../src/kernels/photometric.js';
@@ -114,5 +115,31 @@ describe('photometric normalisation', () => {
     let err = 0;
     for (let i = 0; i < fixed.data.length; i++) err += Math.abs(fixed.data[i] - ref.data[i]);
     expect(err / fixed.data.length).toBeLessThan(12); // the subject's 10% dominates what is left
+  });
+});
+
+describe('half-spectrum 2-D FFT equals the DFT by its definition', () => {
+  // Reference: the 2-D DFT summed term by term, F(u, v) = sum_xy f(x, y) e^(-2 pi i (ux/W + vy/H)).
+  it.each([[8, 4], [16, 16], [4, 32]])('%i x %i', (w, h) => {
+    const rng = makeRng(w * 100 + h);
+    const img = new Float64Array(w * h).map(() => rng.range(-1, 1));
+    const half = fft2dRealHalf(img, w, h);
+    let worst = 0;
+    for (let u = 0; u <= w / 2; u++) {
+      for (let v = 0; v < h; v++) {
+        let re = 0, im = 0;
+        for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) {
+          const a = -2 * Math.PI * ((u * x) / w + (v * y) / h);
+          re += img[y * w + x] * Math.cos(a);
+          im += img[y * w + x] * Math.sin(a);
+        }
+        const i = 2 * (u * h + v);
+        worst = Math.max(worst, Math.abs(half[i] - re), Math.abs(half[i + 1] - im));
+      }
+    }
+    expect(worst).toBeLessThan(1e-9);
+    // And back: the inverse restores the image.
+    const back = ifft2dHalfToReal(half, w, h);
+    expect(Math.max(...back.map((b, i) => Math.abs(b - img[i])))).toBeLessThan(1e-12);
   });
 });
