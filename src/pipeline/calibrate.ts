@@ -11,7 +11,7 @@
 import { openLedger } from '../ledger/open-ledger.js';
 import { createCalibrationStore } from '../ledger/calibration-store.js';
 import { MOTION_MODEL } from '../kernels/model.js';
-import { clopperPearsonLower, sampleSizeForZeroMisses } from '../shared/stats/binomial.js';
+import { recallThreshold, sampleSizeForZeroMisses } from '../shared/stats/binomial.js';
 import { MovesiftError } from '../shared/errors.js';
 import type { CalibrationResult } from '../shared/review-api.js';
 
@@ -31,15 +31,7 @@ export function calibrate(ledger: string, o: { recall: number; apply?: boolean; 
     const n = scores.length;
     const needed = sampleSizeForZeroMisses(1 - o.recall, ALPHA);
     if (n < needed) throw new MovesiftError(CalibrationErrorCode.tooFewAnimals, `${n} event(s) are labelled as holding an animal (kept, or found in an audit); showing a recall of ${o.recall} with 95% confidence needs at least ${needed}, even if none were missed. Review more events first`);
-    // Raising the threshold past the i-th lowest animal score loses i animals; keep the highest
-    // threshold (just above the i-th score, or the lowest score itself) whose bound still reaches the target.
-    let best = { threshold: 0, lower: 1, kept: n };
-    for (let i = 0; i < n; i++) {
-      const kept = n - i; // animals at or above scores[i]
-      const lower = clopperPearsonLower(kept, n, ALPHA);
-      if (lower < o.recall) break;
-      best = { threshold: scores[i], lower, kept };
-    }
+    const best = recallThreshold(scores, o.recall, ALPHA);
     const verdictOf = (score: number) => (score < best.threshold ? 'likely-blank' : score >= MOTION_MODEL.thresholds.motion ? 'motion' : 'unsure');
     const undecided = events.filter((e) => e.decision === null);
     const changes = undecided.filter((e) => verdictOf(e.score) !== e.verdict);

@@ -10,7 +10,7 @@
  */
 import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
-import { clopperPearson, clopperPearsonUpper, sampleSizeForZeroMisses } from '../../src/shared/stats/binomial.js';
+import { clopperPearson, clopperPearsonUpper, recallThreshold, sampleSizeForZeroMisses } from '../../src/shared/stats/binomial.js';
 import { hypergeometricBounds } from '../../src/shared/stats/hypergeometric.js';
 import { logGamma } from '../../src/shared/stats/log-gamma.js';
 
@@ -80,5 +80,26 @@ describe('hypergeometric bounds', () => {
       if (k === 0) lower = 0;
       expect(hypergeometricBounds(k, N, n, tail), `${k} of ${n} from ${N}`).toEqual({ lower, upper });
     }
+  });
+});
+
+describe('recall threshold (the rule behind the default likely-blank threshold and calibrate)', () => {
+  // Reference: @stdlib/stats-binomial-test with alternative 'greater' gives the one-sided
+  // Clopper-Pearson lower bound; the threshold may drop i animals only while that bound, for
+  // n - i kept of n, stays at or above the target.
+  const oneSided = createRequire(import.meta.url)('@stdlib/stats-binomial-test') as (k: number, n: number, o: { alpha: number; alternative: string }) => { ci: [number, number] };
+  it('needs 299 animals for 99% with none missed (ln 0.05 / ln 0.99)', () => {
+    const scores = (n: number) => Array.from({ length: n }, (_, i) => 0.3 + (0.7 * i) / n);
+    expect(recallThreshold(scores(299), 0.99).threshold).toBeCloseTo(0.3, 12);
+    expect(recallThreshold(scores(298), 0.99).threshold).toBe(0);
+  });
+  it.each([500, 1000, 3000])('drops as many animals as the one-sided bound allows, n = %i', (n) => {
+    const scores = Array.from({ length: n }, (_, i) => ((i * 7919) % n) / n);
+    const r = recallThreshold(scores, 0.99);
+    const dropped = n - r.kept;
+    expect(oneSided(r.kept, n, { alpha: 0.05, alternative: 'greater' }).ci[0]).toBeGreaterThanOrEqual(0.99);
+    expect(oneSided(r.kept - 1, n, { alpha: 0.05, alternative: 'greater' }).ci[0]).toBeLessThan(0.99);
+    expect(r.threshold).toBeCloseTo(dropped / n, 12);
+    expect(scores.filter((s) => s >= r.threshold).length).toBe(r.kept);
   });
 });

@@ -60,3 +60,32 @@ export function clopperPearson(k: number, n: number, alpha = 0.05): Interval {
 export function sampleSizeForZeroMisses(tolerance: number, alpha = 0.05): number {
   return Math.ceil(Math.log(alpha) / Math.log(1 - tolerance) - 1e-9);
 }
+
+export interface RecallThreshold {
+  /** Scores below it are called blank; every animal score at or above it is kept. */
+  threshold: number;
+  /** One-sided lower confidence bound on the recall at that threshold. */
+  lower: number;
+  /** Animals at or above the threshold. */
+  kept: number;
+}
+
+/**
+ * The highest threshold whose recall on the given animal scores is at least `recall` with
+ * confidence 1 - alpha: raising the threshold past the i-th lowest score loses i animals, and
+ * the one-sided Clopper-Pearson lower bound of (kept / n) must still reach the target. Returns
+ * threshold 0 (nothing called blank) when even keeping every animal cannot show the target,
+ * which happens below sampleSizeForZeroMisses(1 - recall) animals.
+ */
+export function recallThreshold(animalScores: readonly number[], recall: number, alpha = 0.05): RecallThreshold {
+  const scores = [...animalScores].sort((a, b) => a - b);
+  const n = scores.length;
+  let best: RecallThreshold = { threshold: 0, lower: n ? clopperPearsonLower(n, n, alpha) : 0, kept: n };
+  for (let i = 0; i < n; i++) {
+    const kept = n - i;
+    const lower = clopperPearsonLower(kept, n, alpha);
+    if (lower < recall) break;
+    best = { threshold: scores[i], lower, kept };
+  }
+  return best;
+}
