@@ -65,10 +65,17 @@ export function labelComponents(mask: GreyFrame, change?: GreyFrame): Components
   // Provisional labels: at most one per two pixels in a row plus one, per row.
   const parent = new Int32Array(((w + 1) >> 1) * ((h + 1) >> 1) * 2 + 2);
   let next = 1;
+  // Masks are mostly empty: where four aligned mask bytes are all zero (one 32-bit word), skip
+  // them together. Labels there stay 0, as the byte-by-byte path would leave them.
+  const m32 = m.byteOffset % 4 === 0 ? new Uint32Array(m.buffer, m.byteOffset, m.length >> 2) : undefined;
   for (let y = 0; y < h; y++) {
     const r = y * w;
     for (let x = 0; x < w; x++) {
       const i = r + x;
+      if (m32 && (i & 3) === 0 && x + 3 < w && m32[i >> 2] === 0) {
+        x += 3;
+        continue;
+      }
       if (m[i] === 0) continue;
       let l = 0;
       if (y > 0) {
@@ -106,6 +113,10 @@ export function labelComponents(mask: GreyFrame, change?: GreyFrame): Components
   for (let y = 0; y < h; y++) {
     for (let x = 0; x < w; x++) {
       const i = y * w + x;
+      if (m32 && (i & 3) === 0 && x + 3 < w && m32[i >> 2] === 0) {
+        x += 3;
+        continue;
+      }
       if (labels[i] === 0) continue;
       const l = final[labels[i]];
       labels[i] = l;

@@ -104,9 +104,24 @@ describe('threshold and morphology match OpenCV', () => {
     }
     [src, kernel].forEach((m) => m.delete());
   });
+  it('on a grey image (not a mask), whose width would allow the word path', () => {
+    const rng = makeRng(5);
+    const grey = makeGrey(64, 40);
+    for (let i = 0; i < grey.data.length; i++) grey.data[i] = Math.floor(rng.range(0, 256));
+    const src = toMat(grey);
+    const kernel = cv.Mat.ones(3, 3, cv.CV_8U);
+    for (const [, fn, op] of ops) {
+      const out = new cv.Mat();
+      cv.morphologyEx(src, out, op(), kernel);
+      expect(mismatches(fn(grey).data, out.data)).toBe('identical');
+      out.delete();
+    }
+    [src, kernel].forEach((m) => m.delete());
+  });
   // The 3x3 passes treat the first and last row and column apart from the interior: thin
-  // images exercise every one of those paths.
-  it.each([[1, 9], [9, 1], [2, 7], [7, 2], [3, 3], [1, 1]])('on a %i x %i random mask', (w, h) => {
+  // images exercise every one of those paths. Widths that are a multiple of 4 take the
+  // four-pixels-per-word path, the others the byte path.
+  it.each([[1, 9], [9, 1], [2, 7], [7, 2], [3, 3], [1, 1], [4, 1], [4, 9], [8, 2], [84, 57], [256, 3]])('on a %i x %i random mask', (w, h) => {
     const mask = randomMask(w * 31 + h, w, h, 0.5);
     const src = toMat(mask);
     const kernel = cv.Mat.ones(3, 3, cv.CV_8U);
