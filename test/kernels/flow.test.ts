@@ -5,6 +5,7 @@
  */
 import { beforeAll, describe, expect, it } from 'vitest';
 import { farnebackFlow, DEFAULT_FLOW } from '../../src/kernels/flow/farneback.js';
+import { blurThenResize, gaussianBlur, resizeBilinear } from '../../src/kernels/flow/resample.js';
 import { makeGrey, type FloatImage, type GreyFrame } from '../../src/kernels/frame.js';
 import { toLuma } from '../../src/kernels/luma.js';
 import { ErrorCode } from '../../src/shared/errors.js';
@@ -96,5 +97,21 @@ describe('Farnebäck flow on analytic shifts', () => {
   it('rejects an even window and mismatched frames with stable codes', () => {
     expect(() => farnebackFlow(makeGrey(64, 64), makeGrey(64, 64), { ...DEFAULT_FLOW, winSize: 14 })).toThrowError(/winSize: wanted odd integer/);
     expect(() => farnebackFlow(makeGrey(64, 64), makeGrey(64, 48))).toThrowError(expect.objectContaining({ code: ErrorCode.sizeMismatch }));
+  });
+});
+
+describe('pyramid levels: blurring only where the resize reads', () => {
+  // Reference: the two-step blur then resize (each step checked against OpenCV through the flow
+  // comparisons above). The shortcut must give the same floats bit for bit.
+  it.each([[0.125, 17], [0.25, 9], [0.5, 3], [1, 3], [0.3, 7]])('scale %f, %i taps', (scale, size) => {
+    const rng = makeRng(size * 10 + Math.round(scale * 100));
+    const w = 157, h = 93;
+    const src: FloatImage = { width: w, height: h, channels: 1, data: new Float32Array(w * h).map(() => rng.range(0, 255)) };
+    const sigma = (1 / scale - 1) * 0.5;
+    const ow = Math.round(w * scale), oh = Math.round(h * scale);
+    const a = blurThenResize(src, size, sigma, ow, oh).data;
+    const b = resizeBilinear(gaussianBlur(src, size, sigma), ow, oh).data;
+    expect(a.length).toBe(b.length);
+    expect(a.every((v, i) => Object.is(v, b[i]))).toBe(true);
   });
 });

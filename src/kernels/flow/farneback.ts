@@ -14,7 +14,7 @@ import { invalidArgument } from '../../shared/errors.js';
 import { checkInteger, checkNumber } from '../../shared/validate.js';
 import { checkFrame, checkSameShape, type FloatImage, type GreyFrame } from '../frame.js';
 import { polyExpansion } from './poly-expansion.js';
-import { gaussianBlur, resizeBilinear } from './resample.js';
+import { blurThenResize, resizeBilinear } from './resample.js';
 
 export interface FlowParams {
   pyrScale: number;
@@ -162,7 +162,7 @@ export function farnebackFlow(prev: GreyFrame, next: GreyFrame, p: FlowParams = 
       cur = resizeBilinear(flow, w, h);
       for (let i = 0; i < cur.data.length; i++) cur.data[i] /= p.pyrScale;
     }
-    const R = [f0, f1].map((f) => polyExpansion(resizeBilinear(gaussianBlur(f, smooth, sigma), w, h), p.polyN, p.polySigma).data);
+    const R = [f0, f1].map((f) => polyExpansion(blurThenResize(f, smooth, sigma, w, h), p.polyN, p.polySigma).data);
     const M = new Float32Array(w * h * 5);
     updateMatrices(R[0], R[1], cur.data, M, w, h, 0, h);
     for (let i = 0; i < p.iterations; i++) updateFlowBox(R[0], R[1], cur.data, M, w, h, p.winSize, i < p.iterations - 1);

@@ -74,47 +74,58 @@ export function polyExpansion(src: FloatImage, n: number, sigma: number): FloatI
   const { width: w, height: h } = src;
   const { g, xg, xxg, ig11, ig03, ig33, ig55 } = polyBasis(n, sigma);
   const out = new Float32Array(w * h * 5);
-  const row = new Float64Array((w + 2 * n) * 3);
-  const o = n * 3; // offset of x = 0 in `row`
+  // The vertical sums of 1, y and y^2 along each column, one plane each (contiguous rows read
+  // better than an interleaved triple), with n replicated pixels at both ends.
+  const len = w + 2 * n;
+  const v0 = new Float64Array(len);
+  const v1 = new Float64Array(len);
+  const v2 = new Float64Array(len);
   const s = src.data;
+  const g0 = g[n];
   for (let y = 0; y < h; y++) {
-    // Vertical pass: weighted sums of 1, y, y^2 along the column.
+    const row = y * w;
     for (let x = 0; x < w; x++) {
-      row[o + x * 3] = s[y * w + x] * g[n];
-      row[o + x * 3 + 1] = 0;
-      row[o + x * 3 + 2] = 0;
+      v0[n + x] = s[row + x] * g0;
+      v1[n + x] = 0;
+      v2[n + x] = 0;
     }
     for (let k = 1; k <= n; k++) {
       const r0 = Math.max(y - k, 0) * w;
       const r1 = Math.min(y + k, h - 1) * w;
+      const gk = g[n + k], xgk = xg[n + k], xxgk = xxg[n + k];
       for (let x = 0; x < w; x++) {
-        const p = s[r0 + x] + s[r1 + x];
-        row[o + x * 3] += g[n + k] * p;
-        row[o + x * 3 + 1] += xg[n + k] * (s[r1 + x] - s[r0 + x]);
-        row[o + x * 3 + 2] += xxg[n + k] * p;
+        const a = s[r0 + x];
+        const b = s[r1 + x];
+        const p = a + b;
+        v0[n + x] += gk * p;
+        v1[n + x] += xgk * (b - a);
+        v2[n + x] += xxgk * p;
       }
     }
     for (let x = 0; x < n; x++) {
-      for (let c = 0; c < 3; c++) {
-        row[o - (x + 1) * 3 + c] = row[o + c];
-        row[o + (w + x) * 3 + c] = row[o + (w - 1) * 3 + c];
-      }
+      v0[n - 1 - x] = v0[n];
+      v1[n - 1 - x] = v1[n];
+      v2[n - 1 - x] = v2[n];
+      v0[n + w + x] = v0[n + w - 1];
+      v1[n + w + x] = v1[n + w - 1];
+      v2[n + w + x] = v2[n + w - 1];
     }
     // Horizontal pass.
     for (let x = 0; x < w; x++) {
-      const at = o + x * 3;
-      let b1 = row[at] * g[n], b2 = 0, b3 = row[at + 1] * g[n], b4 = 0, b5 = row[at + 2] * g[n], b6 = 0;
+      const at = n + x;
+      let b1 = v0[at] * g0, b2 = 0, b3 = v1[at] * g0, b4 = 0, b5 = v2[at] * g0, b6 = 0;
       for (let k = 1; k <= n; k++) {
-        const p = at + k * 3, m = at - k * 3;
-        const tg = row[p] + row[m];
-        b1 += tg * g[n + k];
+        const p = at + k, m = at - k;
+        const gk = g[n + k], xgk = xg[n + k];
+        const tg = v0[p] + v0[m];
+        b1 += tg * gk;
         b4 += tg * xxg[n + k];
-        b2 += (row[p] - row[m]) * xg[n + k];
-        b3 += (row[p + 1] + row[m + 1]) * g[n + k];
-        b6 += (row[p + 1] - row[m + 1]) * xg[n + k];
-        b5 += (row[p + 2] + row[m + 2]) * g[n + k];
+        b2 += (v0[p] - v0[m]) * xgk;
+        b3 += (v1[p] + v1[m]) * gk;
+        b6 += (v1[p] - v1[m]) * xgk;
+        b5 += (v2[p] + v2[m]) * gk;
       }
-      const d = (y * w + x) * 5;
+      const d = (row + x) * 5;
       out[d] = b3 * ig11;
       out[d + 1] = b2 * ig11;
       out[d + 2] = b1 * ig03 + b5 * ig33;
