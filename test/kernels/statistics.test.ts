@@ -10,6 +10,8 @@ import { absDiff } from '../../src/kernels/abs-diff.js';
 import { thresholdHysteresis } from '../../src/kernels/threshold.js';
 import { learningRate, startBackground, updateBackground } from '../../src/kernels/running-background.js';
 import { ErrorCode } from '../../src/shared/errors.js';
+import { selectKth } from '../../src/kernels/select.js';
+import { fitGainOffset } from '../../src/kernels/photometric.js';
 import { makeRng } from '../../tools/scenes/random.js';
 
 describe('temporal median equals a brute-force sort', () => {
@@ -132,5 +134,31 @@ describe('running background', () => {
   it('rejects a zero or negative memory', () => {
     expect(() => learningRate(0.2, 0)).toThrowError(/tauSeconds: wanted finite number > 0, got 0/);
     expect(() => learningRate(Number.NaN, 1)).toThrowError(/dtSeconds/);
+  });
+});
+
+describe('selection equals a brute-force sort', () => {
+  // Reference: Array.prototype.sort. Ties matter: flat regions, clipped pixels and identical
+  // frames give thousands of equal values.
+  it.each([
+    ['distinct', (r: ReturnType<typeof makeRng>) => r.range(-100, 100)],
+    ['few values', (r: ReturnType<typeof makeRng>) => Math.floor(r.range(0, 4))],
+    ['mostly one value', (r: ReturnType<typeof makeRng>) => (r.chance(0.9) ? 7 : r.range(0, 10))],
+    ['all equal', () => 3],
+  ] as const)('%s', (_, draw) => {
+    const rng = makeRng(11);
+    for (const n of [1, 2, 3, 10, 101, 5000]) {
+      const v = Array.from({ length: n }, () => draw(rng));
+      const sorted = [...v].sort((a, b) => a - b);
+      for (const k of [0, n >> 1, n - 1, Math.floor(n / 3)]) expect(selectKth(v, k)).toBe(sorted[k]);
+    }
+  });
+  it('fits gain and offset of two identical frames as 1 and 0', () => {
+    const rng = makeRng(3);
+    const f = makeRgb(320, 180);
+    for (let i = 0; i < f.data.length; i++) f.data[i] = Math.floor(rng.range(1, 255));
+    const go = fitGainOffset(f, f);
+    go.gain.forEach((g) => expect(g).toBeCloseTo(1, 9));
+    go.offset.forEach((o) => expect(o).toBeCloseTo(0, 9));
   });
 });
