@@ -75,6 +75,18 @@ describe('threshold and morphology match OpenCV', () => {
     ['open', open3x3, () => cv.MORPH_OPEN],
     ['close', close3x3, () => cv.MORPH_CLOSE],
   ] as const;
+  /** Every operation of ours on `img` against cv.morphologyEx with a 3x3 square. */
+  function expectSameMorphology(img: GreyFrame): void {
+    const src = toMat(img);
+    const kernel = cv.Mat.ones(3, 3, cv.CV_8U);
+    for (const [, fn, op] of ops) {
+      const out = new cv.Mat();
+      cv.morphologyEx(src, out, op(), kernel);
+      expect(mismatches(fn(img).data, out.data)).toBe('identical');
+      out.delete();
+    }
+    [src, kernel].forEach((m) => m.delete());
+  }
   it.each(realPairs)('on the change image of %s', async (fa, fb) => {
     const change = maxOfChannels(absDiff(await readRgb(fa, 480), await readRgb(fb, 480)));
     for (const t of [0, 12, 40, 254]) {
@@ -82,56 +94,24 @@ describe('threshold and morphology match OpenCV', () => {
       cv.threshold(src, dst, t, 255, cv.THRESH_BINARY);
       const ours = thresholdBinary(change, t);
       expect(mismatches(ours.data, dst.data)).toBe('identical');
-      const kernel = cv.Mat.ones(3, 3, cv.CV_8U);
-      for (const [, fn, op] of ops) {
-        const out = new cv.Mat();
-        cv.morphologyEx(dst, out, op(), kernel);
-        expect(mismatches(fn(ours).data, out.data)).toBe('identical');
-        out.delete();
-      }
-      [src, dst, kernel].forEach((m) => m.delete());
+      expectSameMorphology(ours);
+      [src, dst].forEach((m) => m.delete());
     }
   });
   it.each([0.05, 0.3, 0.5, 0.8])('on random masks of density %f', (density) => {
-    const mask = randomMask(Math.round(density * 1000), 83, 57, density);
-    const src = toMat(mask);
-    const kernel = cv.Mat.ones(3, 3, cv.CV_8U);
-    for (const [, fn, op] of ops) {
-      const out = new cv.Mat();
-      cv.morphologyEx(src, out, op(), kernel);
-      expect(mismatches(fn(mask).data, out.data)).toBe('identical');
-      out.delete();
-    }
-    [src, kernel].forEach((m) => m.delete());
+    expectSameMorphology(randomMask(Math.round(density * 1000), 83, 57, density));
   });
   it('on a grey image (not a mask), whose width would allow the word path', () => {
     const rng = makeRng(5);
     const grey = makeGrey(64, 40);
     for (let i = 0; i < grey.data.length; i++) grey.data[i] = Math.floor(rng.range(0, 256));
-    const src = toMat(grey);
-    const kernel = cv.Mat.ones(3, 3, cv.CV_8U);
-    for (const [, fn, op] of ops) {
-      const out = new cv.Mat();
-      cv.morphologyEx(src, out, op(), kernel);
-      expect(mismatches(fn(grey).data, out.data)).toBe('identical');
-      out.delete();
-    }
-    [src, kernel].forEach((m) => m.delete());
+    expectSameMorphology(grey);
   });
   // The 3x3 passes treat the first and last row and column apart from the interior: thin
   // images exercise every one of those paths. Widths that are a multiple of 4 take the
   // four-pixels-per-word path, the others the byte path.
   it.each([[1, 9], [9, 1], [2, 7], [7, 2], [3, 3], [1, 1], [4, 1], [4, 9], [8, 2], [84, 57], [256, 3]])('on a %i x %i random mask', (w, h) => {
-    const mask = randomMask(w * 31 + h, w, h, 0.5);
-    const src = toMat(mask);
-    const kernel = cv.Mat.ones(3, 3, cv.CV_8U);
-    for (const [, fn, op] of ops) {
-      const out = new cv.Mat();
-      cv.morphologyEx(src, out, op(), kernel);
-      expect(mismatches(fn(mask).data, out.data)).toBe('identical');
-      out.delete();
-    }
-    [src, kernel].forEach((m) => m.delete());
+    expectSameMorphology(randomMask(w * 31 + h, w, h, 0.5));
   });
 });
 
