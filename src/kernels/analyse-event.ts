@@ -13,6 +13,7 @@ import { checkFrame, checkSameShape, makeGrey, type GreyFrame, type RgbFrame } f
 import { toLuma } from './luma.js';
 import { close3x3, open3x3 } from './morphology.js';
 import { checkParams, SNR_SCALE, type EngineParams } from './params.js';
+import { edgeContrast } from './edge-contrast.js';
 import { estimateShift, type Shift } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
 import { maxImage, orMask, toSnr } from './snr-image.js';
@@ -181,7 +182,10 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     const blobs = comps.blobs.filter((b) => b.area >= minArea);
     // What the scene could explain, judged against the reference the change was first taken from.
     const ref = background ?? deployment ?? work[k > 0 ? k - 1 : 1];
-    for (const b of blobs) b.unexplained = unexplainedShare(work[k], ref, comps.labels, b, parts[0].sigma);
+    for (const b of blobs) {
+      b.unexplained = unexplainedShare(work[k], ref, comps.labels, b, parts[0].sigma);
+      b.edge = edgeContrast(snr, comps.labels, b);
+    }
     let active = 0;
     for (const b of blobs) active += b.area;
     for (let i = 0; i < snr.data.length; i++) {

@@ -7,6 +7,7 @@
  */
 import { maxChannelChange } from './change-image.js';
 import { labelComponents, type Blob } from './components.js';
+import { edgeContrast } from './edge-contrast.js';
 import { unexplainedShare } from './explained-change.js';
 import { checkFrame, type GreyFrame, type RgbFrame } from './frame.js';
 import { close3x3, open3x3 } from './morphology.js';
@@ -72,7 +73,10 @@ export function createClipAnalyser(o: ClipOptions): ClipAnalyser {
       const snr = maxImage(a.snr, b.snr);
       const comps = labelComponents(m, snr);
       const blobs = comps.blobs.filter((x) => x.area >= minArea);
-      for (const x of blobs) x.unexplained = unexplainedShare(norm, bgFrame, comps.labels, x, a.sigma);
+      for (const x of blobs) {
+        x.unexplained = unexplainedShare(norm, bgFrame, comps.labels, x, a.sigma);
+        x.edge = edgeContrast(snr, comps.labels, x);
+      }
       offerFrame(history, norm, t);
       prev = norm;
       lastT = t;

@@ -21,6 +21,9 @@ export interface Blob {
   /** Share of the blob's pixels that neither a small local shift nor a local light change of the
    *  reference explains (explained-change.ts); set by the event and clip chains. */
   unexplained?: number;
+  /** How sharply the change stops at the blob's outline, 0..1 (edge-contrast.ts); set by the
+   *  event and clip chains. */
+  edge?: number;
 }
 
 export interface Components {

@@ -25,6 +25,7 @@ export const FEATURE_NAMES = [
   'logBlobsPerFrame',
   'trackShare',
   'unexplained',
+  'edge',
 ] as const;
 
 export interface MotionModel {
@@ -56,6 +57,7 @@ export function featureVector(t: TrackFeatures, ctx: EventContext, trackShare: n
     Math.log1p(ctx.blobsPerFrame),
     trackShare,
     t.unexplained,
+    t.edge,
   ];
 }
 

@@ -40,6 +40,8 @@ export interface TrackFeatures {
   fill: number;
   /** Mean share of the blobs' pixels the scene cannot explain by a small shift or a light change. */
   unexplained: number;
+  /** Mean sharpness of the blobs' outlines (edge-contrast.ts). */
+  edge: number;
 }
 
 function boxesTouch(a: Blob, b: Blob): boolean {
@@ -105,5 +107,6 @@ export function trackFeatures(track: Track, frameCount: number, width: number, h
     peakSnr: Math.max(...pts.map((p) => p.blob.peakChange)) / snrScale,
     fill: pts.reduce((a, p) => a + p.blob.area / (p.blob.width * p.blob.height), 0) / pts.length,
     unexplained: pts.reduce((a, p) => a + (p.blob.unexplained ?? 1), 0) / pts.length,
+    edge: pts.reduce((a, p) => a + (p.blob.edge ?? 1), 0) / pts.length,
   };
 }
