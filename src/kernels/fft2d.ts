@@ -21,21 +21,22 @@ function checkSize(width: number, height: number): void {
  * of the same size; allocating per call showed up as garbage-collection time).
  */
 interface HalfPlan {
-  w: number;
-  h: number;
   fw: FFT;
   fh: FFT;
+  /** One row's spectrum (forward) or one row pair's full spectrum and its inverse. */
+  rowIn: Float64Array;
   rowOut: Float64Array;
-  colIn: Float64Array;
+  /** One column's transform. */
   colOut: Float64Array;
-  colsDone?: Float64Array;
+  /** The inverse column transforms, in the transposed half layout. */
+  colsDone: Float64Array;
 }
 const plans = new Map<number, HalfPlan>();
 function plan(w: number, h: number): HalfPlan {
   const key = w * 65536 + h;
   let p = plans.get(key);
   if (!p) {
-    p = { w, h, fw: new FFT(w), fh: new FFT(h), rowOut: new Float64Array(2 * w), colIn: new Float64Array(2 * Math.max(w, h)), colOut: new Float64Array(2 * Math.max(w, h)) };
+    p = { fw: new FFT(w), fh: new FFT(h), rowIn: new Float64Array(2 * w), rowOut: new Float64Array(2 * w), colOut: new Float64Array(2 * h), colsDone: new Float64Array(((w >> 1) + 1) * h * 2) };
     plans.set(key, p);
   }
   return p;
@@ -65,7 +66,7 @@ export function fft2dRealHalf(real: Float64Array, width: number, height: number,
   }
   // Columns: each is contiguous now.
   const n2 = 2 * height;
-  const tmp = p.colOut.subarray(0, n2);
+  const tmp = p.colOut;
   for (let u = 0; u < cols; u++) {
     const col = dst.subarray(u * n2, (u + 1) * n2);
     p.fh.transform(tmp, col);
@@ -87,11 +88,10 @@ export function ifft2dHalfToReal(half: Float64Array, width: number, height: numb
   const p = plan(width, height);
   const n2 = 2 * height;
   // Columns first (inverse over v), into a scratch of the same transposed layout.
-  if (!p.colsDone || p.colsDone.length !== half.length) p.colsDone = new Float64Array(half.length);
   const colsDone = p.colsDone;
   for (let u = 0; u < cols; u++) p.fh.inverseTransform(colsDone.subarray(u * n2, (u + 1) * n2), half.subarray(u * n2, (u + 1) * n2));
   const dst = out && out.length === width * height ? out : new Float64Array(width * height);
-  const z = p.colIn.subarray(0, 2 * width);
+  const z = p.rowIn;
   const zt = p.rowOut;
   for (let y = 0; y < height; y += 2) {
     const y2 = y + 1;

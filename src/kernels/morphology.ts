@@ -6,87 +6,44 @@
  */
 import { checkFrame, makeGrey, type GreyFrame } from './frame.js';
 
-/** Branch-free minimum and maximum of two bytes (sign mask of the difference). */
+/** Branch-free minimum of two bytes (sign mask of the difference). */
 function min(a: number, b: number): number {
   const k = a - b;
   return b + (k & (k >> 31));
 }
-function max(a: number, b: number): number {
-  const k = a - b;
-  return a - (k & (k >> 31));
-}
 
-// Separable: a 3x3 square is a 1x3 then a 3x1 min (erode) or max (dilate). Written out once per
-// operation, borders apart from the interior, so the inner loops have no branches on the
-// operation, the position or the data (masks flip unpredictably at blob edges).
-function erodePass(src: GreyFrame): GreyFrame {
-  const { width: w, height: h } = src;
-  const s = src.data;
+// Only erosion is written out: dilation is erosion of the complement, complemented
+// (max(a, b) = 255 - min(255 - a, 255 - b), and "outside the image is ignored" maps to itself).
+// Separable: a 3x3 square is a 1x3 then a 3x1 minimum. Borders apart from the interior, so the
+// inner loops have no branches on the position or the data (masks flip unpredictably at edges).
+function erodeBytes(src: Uint8Array, w: number, h: number): Uint8Array {
   const tmp = new Uint8Array(w * h);
   for (let y = 0; y < h; y++) {
     const r = y * w;
     if (w === 1) {
-      tmp[r] = s[r];
+      tmp[r] = src[r];
       continue;
     }
-    tmp[r] = s[r] < s[r + 1] ? s[r] : s[r + 1];
-    for (let x = r + 1, end = r + w - 1; x < end; x++) {
-      tmp[x] = min(min(s[x - 1], s[x]), s[x + 1]);
-    }
+    tmp[r] = min(src[r], src[r + 1]);
+    for (let x = r + 1, end = r + w - 1; x < end; x++) tmp[x] = min(min(src[x - 1], src[x]), src[x + 1]);
     const e = r + w - 1;
-    tmp[e] = s[e] < s[e - 1] ? s[e] : s[e - 1];
+    tmp[e] = min(src[e], src[e - 1]);
   }
-  const out = makeGrey(w, h);
-  const d = out.data;
-  if (h === 1) {
-    d.set(tmp);
-    return out;
-  }
-  for (let x = 0; x < w; x++) d[x] = tmp[x] < tmp[x + w] ? tmp[x] : tmp[x + w];
-  for (let i = w, end = (h - 1) * w; i < end; i++) {
-    d[i] = min(min(tmp[i - w], tmp[i]), tmp[i + w]);
-  }
-  for (let i = (h - 1) * w; i < h * w; i++) d[i] = tmp[i] < tmp[i - w] ? tmp[i] : tmp[i - w];
-  return out;
-}
-
-function dilatePass(src: GreyFrame): GreyFrame {
-  const { width: w, height: h } = src;
-  const s = src.data;
-  const tmp = new Uint8Array(w * h);
-  for (let y = 0; y < h; y++) {
-    const r = y * w;
-    if (w === 1) {
-      tmp[r] = s[r];
-      continue;
-    }
-    tmp[r] = s[r] > s[r + 1] ? s[r] : s[r + 1];
-    for (let x = r + 1, end = r + w - 1; x < end; x++) {
-      tmp[x] = max(max(s[x - 1], s[x]), s[x + 1]);
-    }
-    const e = r + w - 1;
-    tmp[e] = s[e] > s[e - 1] ? s[e] : s[e - 1];
-  }
-  const out = makeGrey(w, h);
-  const d = out.data;
-  if (h === 1) {
-    d.set(tmp);
-    return out;
-  }
-  for (let x = 0; x < w; x++) d[x] = tmp[x] > tmp[x + w] ? tmp[x] : tmp[x + w];
-  for (let i = w, end = (h - 1) * w; i < end; i++) {
-    d[i] = max(max(tmp[i - w], tmp[i]), tmp[i + w]);
-  }
-  for (let i = (h - 1) * w; i < h * w; i++) d[i] = tmp[i] > tmp[i - w] ? tmp[i] : tmp[i - w];
+  if (h === 1) return tmp;
+  const out = new Uint8Array(w * h);
+  const last = (h - 1) * w;
+  for (let x = 0; x < w; x++) out[x] = min(tmp[x], tmp[x + w]);
+  for (let i = w; i < last; i++) out[i] = min(min(tmp[i - w], tmp[i]), tmp[i + w]);
+  for (let i = last; i < last + w; i++) out[i] = min(tmp[i], tmp[i - w]);
   return out;
 }
 
 /**
  * Masks of 0/255 bytes whose rows are whole 32-bit words: four pixels per operation. For such
- * bytes the minimum is a bitwise AND and the maximum a bitwise OR, so shifted words give the
- * left and right neighbours of all four pixels at once (little-endian: the byte at the lowest
- * address is the lowest byte of the word). Same result as the byte passes, about four times
- * fewer operations. Returns undefined when the frame does not qualify.
+ * bytes the minimum is a bitwise AND, so shifted words give the left and right neighbours of all
+ * four pixels at once (little-endian: the byte at the lowest address is the lowest byte of the
+ * word). Same result as the byte passes, about four times fewer operations. Returns undefined
+ * when the frame does not qualify.
  */
 function binaryWords(src: GreyFrame): Uint32Array | undefined {
   const d = src.data;
@@ -98,51 +55,54 @@ function binaryWords(src: GreyFrame): Uint32Array | undefined {
 }
 const LITTLE_ENDIAN = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
 
-/** One 3x3 erode (AND) or dilate (OR) on word rows; `outside` is the identity of the operation. */
-function wordPass(src: Uint32Array, words: number, h: number, isErode: boolean): Uint32Array {
-  const outside = isErode ? 0xffffffff : 0;
+/** One 3x3 erosion (AND) on rows of `words` words; outside the image counts as all ones. */
+function erodeWords(src: Uint32Array, words: number, h: number): Uint32Array {
   const tmp = new Uint32Array(src.length);
   for (let y = 0; y < h; y++) {
     const r = y * words;
     for (let i = 0; i < words; i++) {
       const c = src[r + i];
-      const prev = i > 0 ? src[r + i - 1] : outside;
-      const next = i < words - 1 ? src[r + i + 1] : outside;
-      const left = (c << 8) | (prev >>> 24);
-      const right = (c >>> 8) | (next << 24);
-      tmp[r + i] = isErode ? c & left & right : c | left | right;
+      const prev = i > 0 ? src[r + i - 1] : 0xffffffff;
+      const next = i < words - 1 ? src[r + i + 1] : 0xffffffff;
+      tmp[r + i] = c & ((c << 8) | (prev >>> 24)) & ((c >>> 8) | (next << 24));
     }
   }
+  if (h === 1) return tmp;
   const out = new Uint32Array(src.length);
-  if (h === 1) {
-    out.set(tmp);
-    return out;
-  }
   const last = (h - 1) * words;
-  if (isErode) {
-    for (let i = 0; i < words; i++) out[i] = tmp[i] & tmp[i + words];
-    for (let i = words; i < last; i++) out[i] = tmp[i - words] & tmp[i] & tmp[i + words];
-    for (let i = last; i < last + words; i++) out[i] = tmp[i] & tmp[i - words];
-  } else {
-    for (let i = 0; i < words; i++) out[i] = tmp[i] | tmp[i + words];
-    for (let i = words; i < last; i++) out[i] = tmp[i - words] | tmp[i] | tmp[i + words];
-    for (let i = last; i < last + words; i++) out[i] = tmp[i] | tmp[i - words];
-  }
+  for (let i = 0; i < words; i++) out[i] = tmp[i] & tmp[i + words];
+  for (let i = words; i < last; i++) out[i] = tmp[i - words] & tmp[i] & tmp[i + words];
+  for (let i = last; i < last + words; i++) out[i] = tmp[i] & tmp[i - words];
   return out;
 }
 
-/** Applies a sequence of passes (true = erode), on words when the mask allows it. */
+/** Bitwise complement into a new array (for a byte, ~v stores as 255 - v). */
+function complement<T extends Uint8Array | Uint32Array>(d: T): T {
+  const out = d.slice() as T;
+  for (let i = 0; i < out.length; i++) out[i] = ~out[i];
+  return out;
+}
+
+/**
+ * Applies a sequence of passes (true = erode, false = dilate), on words when the mask allows it.
+ * A dilation erodes the complement: the data is complemented whenever the kind of pass changes,
+ * and once more at the end if it was left complemented.
+ */
 function passes(src: GreyFrame, ops: readonly boolean[]): GreyFrame {
   checkFrame('src', src, 1);
+  const { width: w, height: h } = src;
   const words = binaryWords(src);
-  if (words) {
-    let w = words;
-    for (const isErode of ops) w = wordPass(w, src.width >> 2, src.height, isErode);
-    return makeGrey(src.width, src.height, new Uint8Array(w.buffer, w.byteOffset, src.data.length));
+  let d: Uint8Array | Uint32Array = words ?? src.data;
+  let flipped = false;
+  for (const isErode of ops) {
+    if (isErode === flipped) {
+      d = complement(d);
+      flipped = !flipped;
+    }
+    d = d instanceof Uint32Array ? erodeWords(d, w >> 2, h) : erodeBytes(d, w, h);
   }
-  let f = src;
-  for (const isErode of ops) f = isErode ? erodePass(f) : dilatePass(f);
-  return f;
+  if (flipped) d = complement(d);
+  return makeGrey(w, h, d instanceof Uint32Array ? new Uint8Array(d.buffer, d.byteOffset, src.data.length) : d);
 }
 
 export function erode3x3(src: GreyFrame): GreyFrame {

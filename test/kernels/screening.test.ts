@@ -9,24 +9,17 @@
  */
 import { describe, expect, it } from 'vitest';
 import { ANIMAL_CATEGORIES, LAND_FALSE, WATER_FALSE, isUnderwater } from '../../tools/scenes/categories.js';
-import { screenCategories, summarise, type Tally } from '../helpers/screening.js';
+import { screenCategories, summarise } from '../helpers/screening.js';
 
 describe('screening the validation seeds', () => {
-  const tables: Tally[][] = [];
-  it('land cameras, day and night', () => {
-    const table = screenCategories([...ANIMAL_CATEGORIES.filter((c) => !isUnderwater(c)), ...LAND_FALSE]);
-    tables.push(table);
-    expect(summarise(table).recall).toBeGreaterThanOrEqual(0.99);
-  });
-  it('underwater', () => {
-    const table = screenCategories([...ANIMAL_CATEGORIES.filter(isUnderwater), ...WATER_FALSE]);
-    tables.push(table);
-    expect(summarise(table).recall).toBeGreaterThanOrEqual(0.99);
-  });
-  it('keeps 99% of animals and calls at least 80% of false triggers likely-blank, over both', () => {
-    expect(tables).toHaveLength(2);
-    const { recall, blankShare } = summarise(tables.flat());
+  it('keeps 99% of animals in each habitat and calls at least 80% of false triggers likely-blank over both', () => {
+    const land = screenCategories([...ANIMAL_CATEGORIES.filter((c) => !isUnderwater(c)), ...LAND_FALSE]);
+    expect(summarise(land).recall).toBeGreaterThanOrEqual(0.99);
+    const water = screenCategories([...ANIMAL_CATEGORIES.filter(isUnderwater), ...WATER_FALSE]);
+    expect(summarise(water).recall).toBeGreaterThanOrEqual(0.99);
+    const { recall, blankShare } = summarise([...land, ...water]);
     expect(recall).toBeGreaterThanOrEqual(0.99);
     expect(blankShare).toBeGreaterThanOrEqual(0.8);
-  });
+    // About 80 s of scene rendering and analysis on one core here.
+  }, 300_000);
 });

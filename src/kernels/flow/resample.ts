@@ -130,8 +130,6 @@ export function blurThenResize(src: FloatImage, size: number, sigma: number, wid
     needRow[yt.index[y]] = 1;
     needRow[Math.min(h - 1, yt.index[y] + 1)] = 1;
   }
-  const cols: number[] = [];
-  for (let x = 0; x < w; x++) if (needCol[x]) cols.push(x);
   const xs = new Int32Array(w + 2 * r);
   for (let i = -r; i < w + r; i++) xs[i + r] = reflect101(i, w);
   const ys = new Int32Array(h + 2 * r);
@@ -141,7 +139,7 @@ export function blurThenResize(src: FloatImage, size: number, sigma: number, wid
   for (let y = 0; y < h; y++) if (needRow[y]) for (let k = 0; k < size; k++) needTmpRow[ys[y + k]] = 1;
   // Horizontal pass at the needed columns of those rows (float32, as gaussianBlur stores it).
   // Away from the ends the taps read straight along the row; near them, through the mirror table.
-  const colList = Int32Array.from(cols);
+  const colList = Int32Array.from(needCol.keys()).filter((x) => needCol[x] === 1);
   const nc = colList.length;
   const tmp = new Float32Array(w * h);
   for (let y = 0; y < h; y++) {
