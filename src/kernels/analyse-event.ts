@@ -11,10 +11,10 @@ import { labelComponents, type Blob } from './components.js';
 import { unexplainedShare } from './explained-change.js';
 import { checkFrame, checkSameShape, makeGrey, type GreyFrame, type RgbFrame } from './frame.js';
 import { toLuma } from './luma.js';
-import { close3x3, open3x3 } from './morphology.js';
+import { openClose3x3 } from './morphology.js';
 import { checkParams, SNR_SCALE, type EngineParams } from './params.js';
 import { edgeContrast } from './edge-contrast.js';
-import { estimateShift, type Shift } from './phase-correlate.js';
+import { estimateShift, shiftReference, type Shift } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
 import { maxImage, orMask, toSnr } from './snr-image.js';
 import { temporalMedian } from './temporal-median.js';
@@ -121,8 +121,10 @@ export function analyseEvent(input: EventInput): EventAnalysis {
   const results: FrameAnalysis[] = [];
   const work: RgbFrame[] = [];
   let valid: Uint8Array | undefined = ignore ? Uint8Array.from(ignore) : undefined;
+  // The reference's window is transformed once for every frame aligned to it.
+  const refSpectrum = shiftReference(refLuma);
   const align = (f: RgbFrame, luma: GreyFrame): { frame: RgbFrame; shift: Shift; compensated: boolean } => {
-    const shift = estimateShift(luma, toLuma(f));
+    const shift = estimateShift(refSpectrum, f);
     const plausible = shift.confidence >= params.alignMinConfidence && Math.hypot(shift.dx, shift.dy) >= 0.3;
     if (!plausible) return { frame: f, shift, compensated: false };
     const t = translateBilinear(f, shift.dx, shift.dy);
@@ -177,7 +179,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
       snr = maxImage(snr, parts[j].snr);
       mask = orMask(mask, thresholdHysteresis(parts[j].snr, lo, hi));
     }
-    mask = close3x3(open3x3(mask));
+    mask = openClose3x3(mask);
     const comps = labelComponents(mask, snr);
     const blobs = comps.blobs.filter((b) => b.area >= minArea);
     // What the scene could explain, judged against the reference the change was first taken from.

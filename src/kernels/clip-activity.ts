@@ -10,7 +10,7 @@ import { labelComponents, type Blob } from './components.js';
 import { edgeContrast } from './edge-contrast.js';
 import { unexplainedShare } from './explained-change.js';
 import { checkFrame, type GreyFrame, type RgbFrame } from './frame.js';
-import { close3x3, open3x3 } from './morphology.js';
+import { openClose3x3 } from './morphology.js';
 import { checkParams, SNR_SCALE, type EngineParams } from './params.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
 import { createMedianHistory, offerFrame } from './median-history.js';
@@ -68,7 +68,7 @@ export function createClipAnalyser(o: ClipOptions): ClipAnalyser {
       const b = toSnr(maxChannelChange(norm, prev), params.minNoise, mask, o.restless);
       const hi = params.seedSigmas * SNR_SCALE;
       const lo = params.growSigmas * SNR_SCALE;
-      const m = close3x3(open3x3(orMask(thresholdHysteresis(a.snr, lo, hi), thresholdHysteresis(b.snr, lo, hi))));
+      const m = openClose3x3(orMask(thresholdHysteresis(a.snr, lo, hi), thresholdHysteresis(b.snr, lo, hi)));
       const minArea = Math.max(4, Math.round(params.minBlobFraction * frame.width * frame.height));
       const snr = maxImage(a.snr, b.snr);
       const comps = labelComponents(m, snr);

@@ -1,16 +1,19 @@
 /**
  * Phase correlation and shift compensation. Ground truth is analytic: the same continuous
- * texture sampled at positions offset by a known sub-pixel shift.
+ * texture sampled at positions offset by a known sub-pixel shift; and real images (fixtures)
+ * box-downsampled at offsets a known fraction of a pixel apart.
  */
 import { describe, expect, it } from 'vitest';
 import { makeGrey, makeRgb, type GreyFrame } from '../../src/kernels/frame.js';
 import { fft2dRealHalf, ifft2dHalfToReal } from '../../src/kernels/fft2d.js';
 import { estimateShift } from '../../src/kernels/phase-correlate.js';
+import { toLuma } from '../../src/kernels/luma.js';
 import { translateBilinear } from '../../src/kernels/translate.js';
 import { applyGainOffset, fitGainOffset } from '../../src/kernels/photometric.js';
 import { ErrorCode } from '../../src/shared/errors.js';
 import { makeRng } from '../../tools/scenes/random.js';
 import { valueNoise, type Field } from '../../tools/scenes/texture.js';
+import { readRgb } from '../helpers/fixtures.js';
 
 function sample(field: Field, w: number, h: number, dx: number, dy: number, noise = 0, seed = 1): GreyFrame {
   const rng = makeRng(seed);
@@ -41,6 +44,19 @@ describe('phase correlation recovers known shifts within 0.1 px (analytic ground
     expect(Math.abs(s.dx - dx)).toBeLessThan(0.1);
     expect(Math.abs(s.dy - dy)).toBeLessThan(0.1);
     expect(s.confidence).toBeGreaterThan(0.2);
+  });
+  // Smoother textures (three octaves, larger cells): most of the spectrum is noise there, which
+  // once moved the sub-pixel estimate by up to a pixel.
+  it.each([11, 12, 13, 14, 15, 16, 17, 18, 19, 20, 21, 22])('smooth texture, seed %i', (seed) => {
+    const rng = makeRng(seed);
+    const w = rng.pick([200, 320, 480]);
+    const h = Math.round((w * rng.pick([9, 12, 16])) / 16);
+    const field = valueNoise(rng, rng.pick([10, 16, 24]), 3);
+    const dx = rng.range(-8, 8);
+    const dy = rng.range(-5, 5);
+    const s = estimateShift(sample(field, w, h, 0, 0, 2, seed), sample(field, w, h, dx, dy, 2, seed + 50));
+    expect(Math.abs(s.dx - dx)).toBeLessThan(0.1);
+    expect(Math.abs(s.dy - dy)).toBeLessThan(0.1);
   });
   it('identical frames give zero shift and confidence 1', () => {
     const a = sample(valueNoise(makeRng(9), 8, 3), 64, 32, 0, 0);
@@ -115,6 +131,55 @@ describe('photometric normalisation', () => {
     let err = 0;
     for (let i = 0; i < fixed.data.length; i++) err += Math.abs(fixed.data[i] - ref.data[i]);
     expect(err / fixed.data.length).toBeLessThan(12); // the subject's 10% dominates what is left
+  });
+});
+
+describe('phase correlation on real images shifted by a known fraction of a pixel', () => {
+  // Two box downsamplings (4x4 pixel means) of the same real image, the second starting o pixels
+  // further in: both sample one box-filtered image, a quarter of an output pixel apart per o,
+  // so the second is the first moved by -o/4 output pixels. Images: the Middlebury RubberWhale
+  // frame and OpenCV's basketball frame (../shared/fixtures/flow-pairs, see SOURCES.md).
+  const F = 4;
+  function boxDown(src: GreyFrame, ox: number, oy: number, w: number, h: number): GreyFrame {
+    const out = makeGrey(w, h);
+    for (let y = 0; y < h; y++) {
+      for (let x = 0; x < w; x++) {
+        let sum = 0;
+        for (let j = 0; j < F; j++) for (let i = 0; i < F; i++) sum += src.data[(F * y + oy + j) * src.width + F * x + ox + i];
+        out.data[y * w + x] = Math.round(sum / (F * F));
+      }
+    }
+    return out;
+  }
+  it.each(['flow-pairs/rubberwhale1.png', 'flow-pairs/basketball1.png'])('%s', async (file) => {
+    const src = toLuma(await readRgb(file));
+    const w = Math.floor((src.width - 32) / F), h = Math.floor((src.height - 32) / F);
+    const a = boxDown(src, 0, 0, w, h);
+    for (const [ox, oy] of [[1, 0], [2, 3], [5, 2], [7, 9], [13, 6], [3, 14], [22, 1], [9, 30]]) {
+      const s = estimateShift(a, boxDown(src, ox, oy, w, h));
+      expect(Math.abs(s.dx + ox / F)).toBeLessThan(0.1);
+      expect(Math.abs(s.dy + oy / F)).toBeLessThan(0.1);
+    }
+  });
+});
+
+describe('applying a gain and offset', () => {
+  // The rule, value by value: round(gain * v + offset), clamped to 0..255. The four-pixel word
+  // path must give exactly this for every pixel count (tails of 1 to 3 pixels) and for data that
+  // does not start on a 4-byte boundary (which takes the byte path).
+  it.each([[1, 1], [3, 1], [4, 1], [5, 3], [7, 2], [16, 9]])('equals the per-value rule on %i x %i', (w, h) => {
+    const rng = makeRng(w * 7 + h);
+    const go = { gain: [1.13, 0.61, 2.4], offset: [-7.5, 20.2, -100] };
+    for (const start of [0, 1]) {
+      const buf = new Uint8Array(w * h * 3 + start);
+      for (let i = 0; i < buf.length; i++) buf[i] = Math.floor(rng.range(0, 256));
+      const frame = makeRgb(w, h, buf.subarray(start));
+      const out = applyGainOffset(frame, go);
+      for (let i = 0; i < out.data.length; i++) {
+        const c = i % 3;
+        expect(out.data[i]).toBe(Math.min(255, Math.max(0, Math.round(go.gain[c] * frame.data[i] + go.offset[c]))));
+      }
+    }
   });
 });
 

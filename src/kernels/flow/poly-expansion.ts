@@ -84,23 +84,10 @@ export function polyExpansion(src: FloatImage, n: number, sigma: number): FloatI
   const g0 = g[n];
   for (let y = 0; y < h; y++) {
     const row = y * w;
-    for (let x = 0; x < w; x++) {
-      v0[n + x] = s[row + x] * g0;
-      v1[n + x] = 0;
-      v2[n + x] = 0;
-    }
-    for (let k = 1; k <= n; k++) {
-      const r0 = Math.max(y - k, 0) * w;
-      const r1 = Math.min(y + k, h - 1) * w;
-      const gk = g[n + k], xgk = xg[n + k], xxgk = xxg[n + k];
-      for (let x = 0; x < w; x++) {
-        const a = s[r0 + x];
-        const b = s[r1 + x];
-        const p = a + b;
-        v0[n + x] += gk * p;
-        v1[n + x] += xgk * (b - a);
-        v2[n + x] += xxgk * p;
-      }
+    if (n === 2) {
+      verticalN2(s, v0, v1, v2, g, xg, xxg, row, Math.max(y - 1, 0) * w, Math.min(y + 1, h - 1) * w, Math.max(y - 2, 0) * w, Math.min(y + 2, h - 1) * w, w);
+    } else {
+      verticalSums(s, v0, v1, v2, g, xg, xxg, n, y, w, h);
     }
     for (let x = 0; x < n; x++) {
       v0[n - 1 - x] = v0[n];
@@ -111,6 +98,10 @@ export function polyExpansion(src: FloatImage, n: number, sigma: number): FloatI
       v2[n + w + x] = v2[n + w - 1];
     }
     // Horizontal pass.
+    if (n === 2) {
+      horizontalN2(v0, v1, v2, g, xg, xxg, out, row, w, ig11, ig03, ig33, ig55);
+      continue;
+    }
     for (let x = 0; x < w; x++) {
       const at = n + x;
       let b1 = v0[at] * g0, b2 = 0, b3 = v1[at] * g0, b4 = 0, b5 = v2[at] * g0, b6 = 0;
@@ -134,4 +125,66 @@ export function polyExpansion(src: FloatImage, n: number, sigma: number): FloatI
     }
   }
   return { width: w, height: h, channels: 5, data: out };
+}
+
+/**
+ * The horizontal pass for n = 2 (polyN = 5, the usual setting) with the taps unrolled: the same
+ * sums in the same order as the general loop, so the same floats.
+ */
+function horizontalN2(v0: Float64Array, v1: Float64Array, v2: Float64Array, g: Float64Array, xg: Float64Array, xxg: Float64Array, out: Float32Array, row: number, w: number, ig11: number, ig03: number, ig33: number, ig55: number): void {
+  const g0 = g[2], g1 = g[3], g2 = g[4], x1 = xg[3], x2 = xg[4], xx1 = xxg[3], xx2 = xxg[4];
+  for (let x = 0, at = 2; x < w; x++, at++) {
+    const a0 = v0[at], b0 = v1[at], c0 = v2[at];
+    const p1 = v0[at + 1], m1 = v0[at - 1], p2 = v0[at + 2], m2 = v0[at - 2];
+    const q1 = v1[at + 1], n1 = v1[at - 1], q2 = v1[at + 2], n2 = v1[at - 2];
+    const t1 = p1 + m1, t2 = p2 + m2;
+    const b1 = a0 * g0 + t1 * g1 + t2 * g2;
+    const b4 = 0 + t1 * xx1 + t2 * xx2;
+    const b2 = 0 + (p1 - m1) * x1 + (p2 - m2) * x2;
+    const b3 = b0 * g0 + (q1 + n1) * g1 + (q2 + n2) * g2;
+    const b6 = 0 + (q1 - n1) * x1 + (q2 - n2) * x2;
+    const b5 = c0 * g0 + (v2[at + 1] + v2[at - 1]) * g1 + (v2[at + 2] + v2[at - 2]) * g2;
+    const d = (row + x) * 5;
+    out[d] = b3 * ig11;
+    out[d + 1] = b2 * ig11;
+    out[d + 2] = b1 * ig03 + b5 * ig33;
+    out[d + 3] = b1 * ig03 + b4 * ig33;
+    out[d + 4] = b6 * ig55;
+  }
+}
+
+/** The vertical sums of 1, y and y^2 (weighted by g, xg, xxg) along each column of row y, any n. */
+function verticalSums(s: Float32Array, v0: Float64Array, v1: Float64Array, v2: Float64Array, g: Float64Array, xg: Float64Array, xxg: Float64Array, n: number, y: number, w: number, h: number): void {
+  const row = y * w;
+  const g0 = g[n];
+  for (let x = 0; x < w; x++) {
+    v0[n + x] = s[row + x] * g0;
+    v1[n + x] = 0;
+    v2[n + x] = 0;
+  }
+  for (let k = 1; k <= n; k++) {
+    const r0 = Math.max(y - k, 0) * w;
+    const r1 = Math.min(y + k, h - 1) * w;
+    const gk = g[n + k], xgk = xg[n + k], xxgk = xxg[n + k];
+    for (let x = 0; x < w; x++) {
+      const a = s[r0 + x];
+      const b = s[r1 + x];
+      const p = a + b;
+      v0[n + x] += gk * p;
+      v1[n + x] += xgk * (b - a);
+      v2[n + x] += xxgk * p;
+    }
+  }
+}
+
+/** verticalSums for n = 2 in one pass (rows above a1, a2 and below b1, b2): the same sums in the same order. */
+function verticalN2(s: Float32Array, v0: Float64Array, v1: Float64Array, v2: Float64Array, g: Float64Array, xg: Float64Array, xxg: Float64Array, row: number, a1: number, b1: number, a2: number, b2: number, w: number): void {
+  const g0 = g[2], g1 = g[3], g2 = g[4], x1 = xg[3], x2 = xg[4], xx1 = xxg[3], xx2 = xxg[4];
+  for (let x = 0; x < w; x++) {
+    const u1 = s[a1 + x], d1 = s[b1 + x], u2 = s[a2 + x], d2 = s[b2 + x];
+    const p1 = u1 + d1, p2 = u2 + d2;
+    v0[2 + x] = s[row + x] * g0 + g1 * p1 + g2 * p2;
+    v1[2 + x] = 0 + x1 * (d1 - u1) + x2 * (d2 - u2);
+    v2[2 + x] = 0 + xx1 * p1 + xx2 * p2;
+  }
 }

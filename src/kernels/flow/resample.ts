@@ -49,13 +49,16 @@ export function gaussianBlur(src: FloatImage, size: number, sigma: number): Floa
       }
     }
   }
+  // Vertically: each output summed over the taps in double precision, rounded to float32 once.
   const stride = w * ch;
+  const rows = new Int32Array(size);
   for (let y = 0; y < h; y++) {
     const o = y * stride;
-    for (let k = 0; k < size; k++) {
-      const t = taps[k];
-      const src0 = ys[y + k] * stride;
-      for (let i = 0; i < stride; i++) out[o + i] += t * tmp[src0 + i];
+    for (let k = 0; k < size; k++) rows[k] = ys[y + k] * stride;
+    for (let i = 0; i < stride; i++) {
+      let acc = 0;
+      for (let k = 0; k < size; k++) acc += taps[k] * tmp[rows[k] + i];
+      out[o + i] = acc;
     }
   }
   return { width: w, height: h, channels: ch, data: out };
@@ -137,39 +140,71 @@ export function blurThenResize(src: FloatImage, size: number, sigma: number, wid
   // Rows the vertical taps of the needed rows reach.
   const needTmpRow = new Uint8Array(h);
   for (let y = 0; y < h; y++) if (needRow[y]) for (let k = 0; k < size; k++) needTmpRow[ys[y + k]] = 1;
-  // Horizontal pass at the needed columns of those rows (float32, as gaussianBlur stores it).
-  // Away from the ends the taps read straight along the row; near them, through the mirror table.
+  // Horizontal pass at the needed columns of those rows (float32, as gaussianBlur stores it),
+  // then the vertical pass at the needed rows and columns, each sum in double precision in
+  // gaussianBlur's order, rounded to float32 once. Each loop shape is a function of its own: one
+  // function holding them all was optimised for the first shape it ran and thrown back to the
+  // interpreter whenever a pyramid level took another.
   const colList = Int32Array.from(needCol.keys()).filter((x) => needCol[x] === 1);
-  const nc = colList.length;
+  const all = colList.length === w;
   const tmp = new Float32Array(w * h);
-  for (let y = 0; y < h; y++) {
-    if (!needTmpRow[y]) continue;
-    const row = y * w;
-    for (let c = 0; c < nc; c++) {
-      const x = colList[c];
-      let acc = 0;
-      if (x >= r && x + r < w) {
-        const b = row + x - r;
-        for (let k = 0; k < size; k++) acc += taps[k] * s[b + k];
-      } else {
-        for (let k = 0; k < size; k++) acc += taps[k] * s[row + xs[x + k]];
-      }
-      tmp[row + x] = acc;
-    }
-  }
-  // Vertical pass at the needed rows and columns, accumulated tap by tap into float32 (the
-  // rounding gaussianBlur's output array applies at every step).
   const blurred = new Float32Array(w * h);
-  const all = nc === w;
-  for (let y = 0; y < h; y++) {
-    if (!needRow[y]) continue;
-    const o = y * w;
-    for (let k = 0; k < size; k++) {
-      const t = taps[k];
-      const src0 = ys[y + k] * w;
-      if (all) for (let x = 0; x < w; x++) blurred[o + x] += t * tmp[src0 + x];
-      else for (let c = 0; c < nc; c++) blurred[o + colList[c]] += t * tmp[src0 + colList[c]];
+  if (size === 3 && all && w > 2) {
+    for (let y = 0; y < h; y++) if (needTmpRow[y]) rowBlur3(s, tmp, y * w, w, taps, xs);
+    for (let y = 0; y < h; y++) if (needRow[y]) columnBlur3(tmp, blurred, y * w, ys[y] * w, ys[y + 1] * w, ys[y + 2] * w, w, taps);
+  } else {
+    for (let y = 0; y < h; y++) if (needTmpRow[y]) rowBlurAt(s, tmp, y * w, w, colList, taps, xs);
+    const rows = new Int32Array(size);
+    for (let y = 0; y < h; y++) {
+      if (!needRow[y]) continue;
+      for (let k = 0; k < size; k++) rows[k] = ys[y + k] * w;
+      columnBlurAt(tmp, blurred, y * w, rows, colList, taps);
     }
   }
-  return resizeBilinear({ width: w, height: h, channels: 1, data: blurred }, width, height);
+  const image: FloatImage = { width: w, height: h, channels: 1, data: blurred };
+  // At the same size the bilinear taps fall on the pixels themselves (fraction 0): the resize
+  // would copy every value unchanged.
+  return width === w && height === h ? image : resizeBilinear(image, width, height);
+}
+
+/** One row with the 3-tap kernel unrolled, the two end pixels through the mirror table. */
+function rowBlur3(s: Float32Array, tmp: Float32Array, row: number, w: number, taps: Float64Array, xs: Int32Array): void {
+  const t0 = taps[0], t1 = taps[1], t2 = taps[2];
+  tmp[row] = 0 + t0 * s[row + xs[0]] + t1 * s[row + xs[1]] + t2 * s[row + xs[2]];
+  for (let x = 1, b = row; x < w - 1; x++, b++) tmp[row + x] = 0 + t0 * s[b] + t1 * s[b + 1] + t2 * s[b + 2];
+  tmp[row + w - 1] = 0 + t0 * s[row + xs[w - 1]] + t1 * s[row + xs[w]] + t2 * s[row + xs[w + 1]];
+}
+
+/** One output row of the 3-tap vertical pass from source rows a, b, c. */
+function columnBlur3(tmp: Float32Array, out: Float32Array, o: number, a: number, b: number, c: number, w: number, taps: Float64Array): void {
+  const t0 = taps[0], t1 = taps[1], t2 = taps[2];
+  for (let x = 0; x < w; x++) out[o + x] = 0 + t0 * tmp[a + x] + t1 * tmp[b + x] + t2 * tmp[c + x];
+}
+
+/** One row at the listed columns: straight along the row away from the ends, through the mirror table near them. */
+function rowBlurAt(s: Float32Array, tmp: Float32Array, row: number, w: number, cols: Int32Array, taps: Float64Array, xs: Int32Array): void {
+  const size = taps.length;
+  const r = (size - 1) >> 1;
+  for (let c = 0; c < cols.length; c++) {
+    const x = cols[c];
+    let acc = 0;
+    if (x >= r && x + r < w) {
+      const b = row + x - r;
+      for (let k = 0; k < size; k++) acc += taps[k] * s[b + k];
+    } else {
+      for (let k = 0; k < size; k++) acc += taps[k] * s[row + xs[x + k]];
+    }
+    tmp[row + x] = acc;
+  }
+}
+
+/** One output row of the vertical pass at the listed columns, from the source rows `rows`. */
+function columnBlurAt(tmp: Float32Array, out: Float32Array, o: number, rows: Int32Array, cols: Int32Array, taps: Float64Array): void {
+  const size = taps.length;
+  for (let c = 0; c < cols.length; c++) {
+    const x = cols[c];
+    let acc = 0;
+    for (let k = 0; k < size; k++) acc += taps[k] * tmp[rows[k] + x];
+    out[o + x] = acc;
+  }
 }
