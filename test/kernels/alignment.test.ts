@@ -6,7 +6,7 @@
 import { describe, expect, it } from 'vitest';
 import { makeGrey, makeRgb, type GreyFrame } from '../../src/kernels/frame.js';
 import { fft2dRealHalf, ifft2dHalfToReal } from '../../src/kernels/fft2d.js';
-import { estimateShift } from '../../src/kernels/phase-correlate.js';
+import { estimateShift, shiftReference } from '../../src/kernels/phase-correlate.js';
 import { toLuma } from '../../src/kernels/luma.js';
 import { translateBilinear } from '../../src/kernels/translate.js';
 import { applyGainOffset, fitGainOffset } from '../../src/kernels/photometric.js';
@@ -57,6 +57,31 @@ describe('phase correlation recovers known shifts within 0.1 px (analytic ground
     const s = estimateShift(sample(field, w, h, 0, 0, 2, seed), sample(field, w, h, dx, dy, 2, seed + 50));
     expect(Math.abs(s.dx - dx)).toBeLessThan(0.1);
     expect(Math.abs(s.dy - dy)).toBeLessThan(0.1);
+  });
+  it('gives the same answer for RGB frames as for their luma, and with the reference transformed once', () => {
+    const rng = makeRng(40);
+    const field = valueNoise(rng, 16, 4);
+    const w = 240, h = 160;
+    const rgb = (dx: number, dy: number, seed: number): ReturnType<typeof makeRgb> => {
+      const f = makeRgb(w, h);
+      const r = makeRng(seed);
+      for (let y = 0; y < h; y++) {
+        for (let x = 0; x < w; x++) {
+          for (let c = 0; c < 3; c++) f.data[(y * w + x) * 3 + c] = Math.max(0, Math.min(255, Math.round(255 * field(x - dx + 9 * c, y - dy) + 2 * r.normal())));
+        }
+      }
+      return f;
+    };
+    const a = rgb(0, 0, 1);
+    const ref = shiftReference(a);
+    for (const [dx, dy, seed] of [[2.3, -1.6, 2], [-0.4, 0.7, 3]]) {
+      const b = rgb(dx, dy, seed);
+      const fromLuma = estimateShift(toLuma(a), toLuma(b));
+      expect(estimateShift(a, b)).toEqual(fromLuma);
+      expect(estimateShift(ref, b)).toEqual(fromLuma);
+      expect(Math.abs(fromLuma.dx - dx)).toBeLessThan(0.1);
+      expect(Math.abs(fromLuma.dy - dy)).toBeLessThan(0.1);
+    }
   });
   it('identical frames give zero shift and confidence 1', () => {
     const a = sample(valueNoise(makeRng(9), 8, 3), 64, 32, 0, 0);

@@ -87,24 +87,30 @@ export function resizeBilinear(src: FloatImage, width: number, height: number): 
   const out = new Float32Array(width * height * ch);
   const xt = sourceTaps(width, sw);
   const yt = sourceTaps(height, sh);
+  // Everything the loops read is a local: property loads inside them left the optimised code
+  // without feedback for the lines after the loop, and each call fell back to the interpreter.
+  resizeRows(src.data, out, sw, sh, ch, width, height, xt.index, xt.frac, yt.index, yt.frac);
+  return { width, height, channels: ch, data: out };
+}
+
+function resizeRows(s: Float32Array, out: Float32Array, sw: number, sh: number, ch: number, width: number, height: number, xi: Int32Array, xf: Float64Array, yi: Int32Array, yf: Float64Array): void {
   for (let y = 0; y < height; y++) {
-    const iy = yt.index[y];
-    const fy = yt.frac[y];
+    const iy = yi[y];
+    const fy = yf[y];
     const iy1 = Math.min(sh - 1, iy + 1);
     for (let x = 0; x < width; x++) {
-      const i0 = xt.index[x];
+      const i0 = xi[x];
       const i1 = Math.min(sw - 1, i0 + 1);
-      const fx = xt.frac[x];
+      const fx = xf[x];
       for (let c = 0; c < ch; c++) {
-        const a = src.data[(iy * sw + i0) * ch + c];
-        const b = src.data[(iy * sw + i1) * ch + c];
-        const d = src.data[(iy1 * sw + i0) * ch + c];
-        const e = src.data[(iy1 * sw + i1) * ch + c];
+        const a = s[(iy * sw + i0) * ch + c];
+        const b = s[(iy * sw + i1) * ch + c];
+        const d = s[(iy1 * sw + i0) * ch + c];
+        const e = s[(iy1 * sw + i1) * ch + c];
         out[(y * width + x) * ch + c] = (a + fx * (b - a)) * (1 - fy) + (d + fx * (e - d)) * fy;
       }
     }
   }
-  return { width, height, channels: ch, data: out };
 }
 
 /**
