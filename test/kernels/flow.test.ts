@@ -68,7 +68,7 @@ describe('Farnebäck flow matches OpenCV on real pairs', () => {
   });
 });
 
-describe('Farnebäck flow with a 7-pixel polynomial (the general expansion path; 5 has its own unrolled one)', () => {
+describe('Farnebäck flow with a larger polynomial neighbourhood than the default (polyN 7)', () => {
   it('matches OpenCV on the RubberWhale pair', async () => {
     const p = { ...DEFAULT_FLOW, polyN: 7, polySigma: 1.5 };
     const a = toLuma(await readRgb('flow-pairs/rubberwhale1.png'));

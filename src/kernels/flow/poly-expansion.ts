@@ -5,7 +5,8 @@
  * inverse Gram matrix of the basis (the paper's normalised convolution with a constant
  * certainty). Output: 5 coefficients per pixel, in this order:
  *   [0] b_y, [1] b_x, [2] A_yy, [3] A_xx, [4] A_xy (the constant c is not needed).
- * Borders replicate the edge pixel.
+ * Borders replicate the edge pixel. The flow passes its polyN here as n, as OpenCV's
+ * implementation does (FarnebackPolyExp), so the default polyN = 5 fits over 11 x 11 pixels.
  */
 import type { FloatImage } from '../frame.js';
 
@@ -81,14 +82,15 @@ export function polyExpansion(src: FloatImage, n: number, sigma: number): FloatI
   const v1 = new Float64Array(len);
   const v2 = new Float64Array(len);
   const s = src.data;
-  const g0 = g[n];
+  const above = new Int32Array(n + 1);
+  const below = new Int32Array(n + 1);
   for (let y = 0; y < h; y++) {
     const row = y * w;
-    if (n === 2) {
-      verticalN2(s, v0, v1, v2, g, xg, xxg, row, Math.max(y - 1, 0) * w, Math.min(y + 1, h - 1) * w, Math.max(y - 2, 0) * w, Math.min(y + 2, h - 1) * w, w);
-    } else {
-      verticalSums(s, v0, v1, v2, g, xg, xxg, n, y, w, h);
+    for (let k = 1; k <= n; k++) {
+      above[k] = Math.max(y - k, 0) * w;
+      below[k] = Math.min(y + k, h - 1) * w;
     }
+    verticalSums(s, v0, v1, v2, g, xg, xxg, n, row, above, below, w);
     for (let x = 0; x < n; x++) {
       v0[n - 1 - x] = v0[n];
       v1[n - 1 - x] = v1[n];
@@ -97,94 +99,59 @@ export function polyExpansion(src: FloatImage, n: number, sigma: number): FloatI
       v1[n + w + x] = v1[n + w - 1];
       v2[n + w + x] = v2[n + w - 1];
     }
-    // Horizontal pass.
-    if (n === 2) {
-      horizontalN2(v0, v1, v2, g, xg, xxg, out, row, w, ig11, ig03, ig33, ig55);
-      continue;
-    }
-    for (let x = 0; x < w; x++) {
-      const at = n + x;
-      let b1 = v0[at] * g0, b2 = 0, b3 = v1[at] * g0, b4 = 0, b5 = v2[at] * g0, b6 = 0;
-      for (let k = 1; k <= n; k++) {
-        const p = at + k, m = at - k;
-        const gk = g[n + k], xgk = xg[n + k];
-        const tg = v0[p] + v0[m];
-        b1 += tg * gk;
-        b4 += tg * xxg[n + k];
-        b2 += (v0[p] - v0[m]) * xgk;
-        b3 += (v1[p] + v1[m]) * gk;
-        b6 += (v1[p] - v1[m]) * xgk;
-        b5 += (v2[p] + v2[m]) * gk;
-      }
-      const d = (row + x) * 5;
-      out[d] = b3 * ig11;
-      out[d + 1] = b2 * ig11;
-      out[d + 2] = b1 * ig03 + b5 * ig33;
-      out[d + 3] = b1 * ig03 + b4 * ig33;
-      out[d + 4] = b6 * ig55;
-    }
+    horizontalSums(v0, v1, v2, g, xg, xxg, n, out, row, w, ig11, ig03, ig33, ig55);
   }
   return { width: w, height: h, channels: 5, data: out };
 }
 
 /**
- * The horizontal pass for n = 2 (polyN = 5, the usual setting) with the taps unrolled: the same
- * sums in the same order as the general loop, so the same floats.
+ * The vertical sums of 1, y and y^2 (weighted by g, xg, xxg) along each column of one row, the
+ * rows k above and below at offsets above[k] and below[k] (edge rows replicated). Each column's
+ * three sums stay in registers over all taps and are stored once (a pass per tap read and wrote
+ * all three planes n + 1 times).
  */
-function horizontalN2(v0: Float64Array, v1: Float64Array, v2: Float64Array, g: Float64Array, xg: Float64Array, xxg: Float64Array, out: Float32Array, row: number, w: number, ig11: number, ig03: number, ig33: number, ig55: number): void {
-  const g0 = g[2], g1 = g[3], g2 = g[4], x1 = xg[3], x2 = xg[4], xx1 = xxg[3], xx2 = xxg[4];
-  for (let x = 0, at = 2; x < w; x++, at++) {
-    const a0 = v0[at], b0 = v1[at], c0 = v2[at];
-    const p1 = v0[at + 1], m1 = v0[at - 1], p2 = v0[at + 2], m2 = v0[at - 2];
-    const q1 = v1[at + 1], n1 = v1[at - 1], q2 = v1[at + 2], n2 = v1[at - 2];
-    const t1 = p1 + m1, t2 = p2 + m2;
-    const b1 = a0 * g0 + t1 * g1 + t2 * g2;
-    const b4 = 0 + t1 * xx1 + t2 * xx2;
-    const b2 = 0 + (p1 - m1) * x1 + (p2 - m2) * x2;
-    const b3 = b0 * g0 + (q1 + n1) * g1 + (q2 + n2) * g2;
-    const b6 = 0 + (q1 - n1) * x1 + (q2 - n2) * x2;
-    const b5 = c0 * g0 + (v2[at + 1] + v2[at - 1]) * g1 + (v2[at + 2] + v2[at - 2]) * g2;
+function verticalSums(s: Float32Array, v0: Float64Array, v1: Float64Array, v2: Float64Array, g: Float64Array, xg: Float64Array, xxg: Float64Array, n: number, row: number, above: Int32Array, below: Int32Array, w: number): void {
+  const g0 = g[n];
+  for (let x = 0; x < w; x++) {
+    let a0 = s[row + x] * g0;
+    let a1 = 0;
+    let a2 = 0;
+    for (let k = 1; k <= n; k++) {
+      const a = s[above[k] + x];
+      const b = s[below[k] + x];
+      const p = a + b;
+      a0 += g[n + k] * p;
+      a1 += xg[n + k] * (b - a);
+      a2 += xxg[n + k] * p;
+    }
+    v0[n + x] = a0;
+    v1[n + x] = a1;
+    v2[n + x] = a2;
+  }
+}
+
+/** The horizontal pass over one row's vertical sums: the five coefficients of every pixel. */
+function horizontalSums(v0: Float64Array, v1: Float64Array, v2: Float64Array, g: Float64Array, xg: Float64Array, xxg: Float64Array, n: number, out: Float32Array, row: number, w: number, ig11: number, ig03: number, ig33: number, ig55: number): void {
+  const g0 = g[n];
+  for (let x = 0; x < w; x++) {
+    const at = n + x;
+    let b1 = v0[at] * g0, b2 = 0, b3 = v1[at] * g0, b4 = 0, b5 = v2[at] * g0, b6 = 0;
+    for (let k = 1; k <= n; k++) {
+      const p = at + k, m = at - k;
+      const gk = g[n + k], xgk = xg[n + k];
+      const tg = v0[p] + v0[m];
+      b1 += tg * gk;
+      b4 += tg * xxg[n + k];
+      b2 += (v0[p] - v0[m]) * xgk;
+      b3 += (v1[p] + v1[m]) * gk;
+      b6 += (v1[p] - v1[m]) * xgk;
+      b5 += (v2[p] + v2[m]) * gk;
+    }
     const d = (row + x) * 5;
     out[d] = b3 * ig11;
     out[d + 1] = b2 * ig11;
     out[d + 2] = b1 * ig03 + b5 * ig33;
     out[d + 3] = b1 * ig03 + b4 * ig33;
     out[d + 4] = b6 * ig55;
-  }
-}
-
-/** The vertical sums of 1, y and y^2 (weighted by g, xg, xxg) along each column of row y, any n. */
-function verticalSums(s: Float32Array, v0: Float64Array, v1: Float64Array, v2: Float64Array, g: Float64Array, xg: Float64Array, xxg: Float64Array, n: number, y: number, w: number, h: number): void {
-  const row = y * w;
-  const g0 = g[n];
-  for (let x = 0; x < w; x++) {
-    v0[n + x] = s[row + x] * g0;
-    v1[n + x] = 0;
-    v2[n + x] = 0;
-  }
-  for (let k = 1; k <= n; k++) {
-    const r0 = Math.max(y - k, 0) * w;
-    const r1 = Math.min(y + k, h - 1) * w;
-    const gk = g[n + k], xgk = xg[n + k], xxgk = xxg[n + k];
-    for (let x = 0; x < w; x++) {
-      const a = s[r0 + x];
-      const b = s[r1 + x];
-      const p = a + b;
-      v0[n + x] += gk * p;
-      v1[n + x] += xgk * (b - a);
-      v2[n + x] += xxgk * p;
-    }
-  }
-}
-
-/** verticalSums for n = 2 in one pass (rows above a1, a2 and below b1, b2): the same sums in the same order. */
-function verticalN2(s: Float32Array, v0: Float64Array, v1: Float64Array, v2: Float64Array, g: Float64Array, xg: Float64Array, xxg: Float64Array, row: number, a1: number, b1: number, a2: number, b2: number, w: number): void {
-  const g0 = g[2], g1 = g[3], g2 = g[4], x1 = xg[3], x2 = xg[4], xx1 = xxg[3], xx2 = xxg[4];
-  for (let x = 0; x < w; x++) {
-    const u1 = s[a1 + x], d1 = s[b1 + x], u2 = s[a2 + x], d2 = s[b2 + x];
-    const p1 = u1 + d1, p2 = u2 + d2;
-    v0[2 + x] = s[row + x] * g0 + g1 * p1 + g2 * p2;
-    v1[2 + x] = 0 + x1 * (d1 - u1) + x2 * (d2 - u2);
-    v2[2 + x] = 0 + xx1 * p1 + xx2 * p2;
   }
 }
