@@ -20,7 +20,14 @@ export interface LabelledEvent {
   analysis: EventAnalysis;
 }
 
-export function analyseScene(scene: Scene, withDeploymentBackground = true): LabelledEvent {
+/**
+ * Analyses a scene as a scan does (src/pipeline/analyse-task.ts): a burst is its own reference;
+ * a single image gets the temporal median of neighbouring triggers as its background. The model
+ * is fitted and judged on exactly what the product will compute. `withDeploymentBackground`
+ * also gives bursts that background (clean neighbours a real scan does not have; for
+ * experiments only).
+ */
+export function analyseScene(scene: Scene, withDeploymentBackground = false): LabelledEvent {
   const strip = detectDataStripInFrames(scene.frames);
   const mask = strip.top || strip.bottom ? ignoreMask(scene.width, scene.height, strip) : undefined;
   const background = scene.neighbours.length && (withDeploymentBackground || scene.frames.length === 1) ? temporalMedian(scene.neighbours) : undefined;

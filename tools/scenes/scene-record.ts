@@ -5,11 +5,14 @@
  */
 import { scoreEventRows, type MotionModel } from '../../src/kernels/score.js';
 import type { CategoryName } from './categories.js';
-import { analyseScene } from './evaluate.js';
+import { analyseScene, type LabelledEvent } from './evaluate.js';
 import { renderScene, type SceneRequest } from './render.js';
 
 export interface SceneRecord {
   seed: number;
+  /** 'scan': analysed as a scan analyses it (what the product computes); 'clean': a burst also
+   *  given its clean neighbours as background (extra training data, never used for thresholds). */
+  mode: 'scan' | 'clean';
   category: CategoryName;
   animal: boolean;
   frames: number;
@@ -18,9 +21,16 @@ export interface SceneRecord {
   noReference: boolean;
 }
 
-export function sceneRecord(req: SceneRequest): SceneRecord {
-  const e = analyseScene(renderScene(req));
-  return { seed: e.seed, category: e.category, animal: e.animal, frames: e.frames, rows: e.rows, labels: e.labels, noReference: e.analysis.context.noReference };
+function toRecord(e: LabelledEvent, mode: SceneRecord['mode']): SceneRecord {
+  return { seed: e.seed, mode, category: e.category, animal: e.animal, frames: e.frames, rows: e.rows, labels: e.labels, noReference: e.analysis.context.noReference };
+}
+
+/** The scene as a scan analyses it, and for a burst also with the clean background. */
+export function sceneRecords(req: SceneRequest): SceneRecord[] {
+  const scene = renderScene(req);
+  const out = [toRecord(analyseScene(scene), 'scan')];
+  if (scene.frames.length > 1 && scene.neighbours.length) out.push(toRecord(analyseScene(scene, true), 'clean'));
+  return out;
 }
 
 export const recordScore = (m: MotionModel, r: SceneRecord) => scoreEventRows(m, r.rows, r.noReference);
