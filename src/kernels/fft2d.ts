@@ -6,6 +6,7 @@
  */
 import FFT from 'fft.js';
 import { invalidArgument } from '../shared/errors.js';
+import { perSize } from './frame.js';
 
 export function isPowerOfTwo(n: number): boolean {
   return Number.isInteger(n) && n >= 2 && (n & (n - 1)) === 0;
@@ -16,10 +17,7 @@ function checkSize(width: number, height: number): void {
   if (!isPowerOfTwo(height)) throw invalidArgument('height', 'power of two >= 2', height);
 }
 
-/**
- * Scratch and transforms for one size, reused across calls (a scan runs thousands of frames
- * of the same size; allocating per call showed up as garbage-collection time).
- */
+/** Scratch and transforms for one size, reused across calls. */
 interface HalfPlan {
   fw: FFT;
   fh: FFT;
@@ -31,16 +29,9 @@ interface HalfPlan {
   /** The inverse column transforms, in the transposed half layout. */
   colsDone: Float64Array;
 }
-const plans = new Map<number, HalfPlan>();
-function plan(w: number, h: number): HalfPlan {
-  const key = w * 65536 + h;
-  let p = plans.get(key);
-  if (!p) {
-    p = { fw: new FFT(w), fh: new FFT(h), rowIn: new Float64Array(2 * w), rowOut: new Float64Array(2 * w), colOut: new Float64Array(2 * h), colsDone: new Float64Array(((w >> 1) + 1) * h * 2) };
-    plans.set(key, p);
-  }
-  return p;
-}
+const plan = perSize(
+  (w, h): HalfPlan => ({ fw: new FFT(w), fh: new FFT(h), rowIn: new Float64Array(2 * w), rowOut: new Float64Array(2 * w), colOut: new Float64Array(2 * h), colsDone: new Float64Array(((w >> 1) + 1) * h * 2) }),
+);
 
 /**
  * Forward transform of a real width x height image, keeping only the non-redundant half of the

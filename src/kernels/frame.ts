@@ -63,3 +63,24 @@ export function checkSameShape(nameA: string, a: Frame | FloatImage, nameB: stri
     );
   }
 }
+
+/** Whether this machine stores the lowest byte of a word first (word-at-a-time pixel loops need it). */
+export const LITTLE_ENDIAN = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
+
+/**
+ * Memoises per-size working state (transform plans, windows, scratch arrays): a scan runs
+ * thousands of frames of one size, and building these per call showed up as allocation and
+ * garbage-collection time.
+ */
+export function perSize<T>(make: (width: number, height: number) => T): (width: number, height: number) => T {
+  const cache = new Map<number, T>();
+  return (width, height) => {
+    const key = width * 65536 + height;
+    let v = cache.get(key);
+    if (v === undefined) {
+      v = make(width, height);
+      cache.set(key, v);
+    }
+    return v;
+  };
+}

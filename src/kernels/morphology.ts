@@ -4,7 +4,7 @@
  * border"). Opening removes speckle (rain, sensor noise); closing bridges small gaps inside a
  * subject so that one animal gives one blob.
  */
-import { checkFrame, makeGrey, type GreyFrame } from './frame.js';
+import { LITTLE_ENDIAN, checkFrame, makeGrey, type GreyFrame } from './frame.js';
 
 /** Branch-free minimum of two bytes (sign mask of the difference). */
 function min(a: number, b: number): number {
@@ -59,8 +59,6 @@ function binaryWords(src: GreyFrame): Int32Array | undefined {
   }
   return bad ? undefined : words;
 }
-const LITTLE_ENDIAN = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
-
 /**
  * One erosion by a (2r+1) x (2r+1) square, r = 1 or 2, on rows of `words` words, from `src`
  * into `dst` through `tmp`; outside the image counts as all ones. `flip` (0 or -1) is XORed

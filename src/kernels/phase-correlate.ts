@@ -14,7 +14,7 @@
  * (rounded as toLuma rounds it, so the result is the same as passing toLuma of the frame). A burst
  * aligns every frame to one reference: `shiftReference` transforms it once for all of them.
  */
-import { checkFrame, type FloatImage, type Frame } from './frame.js';
+import { checkFrame, perSize, type FloatImage, type Frame } from './frame.js';
 import { fft2dRealHalf, ifft2dHalfToReal } from './fft2d.js';
 import { sizeMismatch } from '../shared/errors.js';
 import { upperMedian } from './select.js';
@@ -72,23 +72,16 @@ function hann(n: number): Float64Array {
 }
 
 /** The 2-D Hann window (row taper times column taper), built once per size. */
-const windows = new Map<number, Float64Array>();
-function hann2d(w: number, h: number): Float64Array {
-  const key = w * 65536 + h;
-  let win = windows.get(key);
-  if (!win) {
-    const wx = hann(w), wy = hann(h);
-    win = new Float64Array(w * h);
-    for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) win[y * w + x] = wx[x] * wy[y];
-    windows.set(key, win);
-  }
+const hann2d = perSize((w, h): Float64Array => {
+  const wx = hann(w), wy = hann(h);
+  const win = new Float64Array(w * h);
+  for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) win[y * w + x] = wx[x] * wy[y];
   return win;
-}
+});
 
 /**
- * Working arrays for one window size, reused by every call (a scan aligns thousands of frames of
- * one size; fresh arrays per call showed up as allocation and garbage-collection time). Calls
- * are synchronous, so one set per size is enough; nothing in them outlives a call.
+ * Working arrays for one window size, reused by every call. Calls are synchronous, so one set
+ * per size is enough; nothing in them outlives a call.
  */
 interface Scratch {
   /** The windowed crop (input of a forward transform). */
@@ -104,25 +97,18 @@ interface Scratch {
   /** The correlation surface. */
   surface: Float64Array;
 }
-const scratches = new Map<number, Scratch>();
-function scratchFor(w: number, h: number): Scratch {
-  const key = w * 65536 + h;
-  let sc = scratches.get(key);
-  if (!sc) {
-    const half = ((w >> 1) + 1) * h;
-    sc = {
-      crop: new Float64Array(w * h),
-      spectrum: new Float64Array(2 * half),
-      cross: new Float64Array(2 * half),
-      locate: new Float64Array(2 * half),
-      mags: new Float64Array(half),
-      sampled: new Float64Array(Math.ceil(half / MEDIAN_EVERY)),
-      surface: new Float64Array(w * h),
-    };
-    scratches.set(key, sc);
-  }
-  return sc;
-}
+const scratchFor = perSize((w, h): Scratch => {
+  const half = ((w >> 1) + 1) * h;
+  return {
+    crop: new Float64Array(w * h),
+    spectrum: new Float64Array(2 * half),
+    cross: new Float64Array(2 * half),
+    locate: new Float64Array(2 * half),
+    mags: new Float64Array(half),
+    sampled: new Float64Array(Math.ceil(half / MEDIAN_EVERY)),
+    surface: new Float64Array(w * h),
+  };
+});
 
 /** The w x h crop at (x0, y0), mean removed and Hann-windowed, as a real image (into `out`). */
 function windowed(img: Image, w: number, h: number, x0: number, y0: number, out: Float64Array = new Float64Array(w * h)): Float64Array {

@@ -7,7 +7,7 @@
  * This is what keeps an exposure step, a cloud or the IR lamp changing power from reading as
  * motion.
  */
-import { checkFrame, checkSameShape, type Frame } from './frame.js';
+import { LITTLE_ENDIAN, checkFrame, checkSameShape, type Frame } from './frame.js';
 
 export interface GainOffset {
   gain: number[];
@@ -167,8 +167,6 @@ export function fitGainOffset(reference: Frame, current: Frame, valid?: Uint8Arr
   }
   return { gain, offset };
 }
-
-const LITTLE_ENDIAN = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
 
 export function applyGainOffset<T extends Frame>(frame: T, go: GainOffset): T {
   checkFrame('frame', frame);
