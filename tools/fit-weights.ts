@@ -12,10 +12,10 @@
  * 0.455 with the first fit alone, 0.674 after four rounds. With edge contrast, chosen by the
  * out-of-fold share only: 4 rounds 0.733, 8 rounds 0.750, 4 rounds with a softmax twice as
  * soft 0.720. (Those numbers were measured with bursts given a clean background, which a scan
- * never gives them; see the scene records below.)
+ * never gives them.)
  *
- * Thresholds, both derived from the fit set's scan records (analysed as the product analyses
- * them), never tuned by hand:
+ * Thresholds, both derived from the fit set's records (analysed as the product analyses them),
+ * never tuned by hand:
  * - likely-blank: the fit seeds are split in two folds, each scored by the model fitted on the
  *   other, which estimates how unseen animals score; the threshold is the highest at which the
  *   out-of-fold animal recall is at least 99% with 95% confidence (one-sided Clopper-Pearson
@@ -28,7 +28,7 @@ import path from 'node:path';
 import { expandFeatures, FEATURE_NAMES, type MotionModel } from '../src/kernels/score.js';
 import { ALL_CATEGORIES } from './scenes/categories.js';
 import { sceneRequests } from './scenes/evaluate.js';
-import { recordScore, sceneRecords, type SceneRecord } from './scenes/scene-record.js';
+import { recordScore, sceneRecord, type SceneRecord } from './scenes/scene-record.js';
 import { FIT_SEEDS } from './scenes/seeds.js';
 import { fitLogistic } from './logistic.js';
 import { recallThreshold, sampleSizeForZeroMisses } from '../src/shared/stats/binomial.js';
@@ -36,12 +36,11 @@ import { inParts } from './parts.js';
 
 const started = Date.now();
 const requests = sceneRequests(FIT_SEEDS.first, FIT_SEEDS.perCategory, ALL_CATEGORIES);
-// Every scene as a scan analyses it, and each burst once more with a clean background: both
-// train the model; thresholds and metrics come from the scan records alone (what the product
-// computes). Trained on scan records alone, a model let one night animal fall to an out-of-fold
-// score of 0.008 and the recall rule took the threshold with it (out-of-fold likely-blank 0.22).
-const events = (await inParts<SceneRecord>(import.meta.filename, async (i, n) => requests.filter((_, k) => k % n === i).flatMap(sceneRecords))).sort((a, b) => a.seed - b.seed || a.mode.localeCompare(b.mode));
-const scanEvents = events.filter((e) => e.mode === 'scan');
+// Every scene as a scan analyses it: the event's frames with its (not clean) neighbours, from
+// which the engine builds a deployment background. Until 2026-12-02 each burst was also
+// analysed once more with clean neighbours as extra training data; bursts now always get a
+// deployment background, so the model trains on what the product computes and nothing else.
+const events = (await inParts<SceneRecord>(import.meta.filename, async (i, n) => requests.filter((_, k) => k % n === i).map(sceneRecord))).sort((a, b) => a.seed - b.seed);
 const lo = FEATURE_NAMES.map(() => Infinity);
 const hi = FEATURE_NAMES.map(() => -Infinity);
 for (const e of events) for (const r of e.rows) r.forEach((v, j) => ((lo[j] = Math.min(lo[j], v)), (hi[j] = Math.max(hi[j], v))));
@@ -104,11 +103,11 @@ const pos = events.reduce((a, e) => a + e.labels.filter((l) => l === 1).length, 
 const oof = new Map<number, number>();
 for (const fold of [0, 1]) {
   const m = train(events.filter((e) => e.seed % 2 !== fold));
-  for (const e of scanEvents) if (e.seed % 2 === fold) oof.set(e.seed, recordScore(m, e).score);
+  for (const e of events) if (e.seed % 2 === fold) oof.set(e.seed, recordScore(m, e).score);
 }
 const draft: MotionModel = { ...fit };
-const scored = scanEvents.map((e) => ({ e, s: recordScore(draft, e).score }));
-const animalScores = scanEvents.filter((e) => e.animal).map((e) => oof.get(e.seed)!);
+const scored = events.map((e) => ({ e, s: recordScore(draft, e).score }));
+const animalScores = events.filter((e) => e.animal).map((e) => oof.get(e.seed)!);
 const TARGET_RECALL = 0.99;
 if (animalScores.length < sampleSizeForZeroMisses(1 - TARGET_RECALL)) throw new Error(`${animalScores.length} animal events cannot show ${TARGET_RECALL} recall; raise FIT_PER_CATEGORY`);
 const blankRule = recallThreshold(animalScores, TARGET_RECALL);
@@ -128,8 +127,7 @@ const model = {
     script: 'tools/fit-weights.ts',
     data: 'models/motion-fit-data.csv',
     seeds: FIT_SEEDS,
-    events: scanEvents.length,
-    trainingRecords: events.length,
+    events: events.length,
     tracks: rows.length,
     subjectTracks: pos,
     lambda: LAMBDA,
@@ -143,7 +141,7 @@ const model = {
         return [c, { events: xs.length, likelyBlank: blanks, likelyBlankOutOfFold: oofBlank, meanScore: +(xs.reduce((a, x) => a + x.s, 0) / xs.length).toFixed(4) }];
       }),
     ),
-    lowestOutOfFoldAnimals: scanEvents
+    lowestOutOfFoldAnimals: events
       .filter((e) => e.animal)
       .map((e) => ({ seed: e.seed, category: e.category, frames: e.frames, score: +oof.get(e.seed)!.toExponential(3) }))
       .sort((a, b) => a.score - b.score)
@@ -154,8 +152,8 @@ const model = {
 const root = path.resolve(import.meta.dirname, '..');
 fs.mkdirSync(path.join(root, 'models'), { recursive: true });
 fs.writeFileSync(path.join(root, 'models/motion-weights.json'), JSON.stringify(model, null, 2) + '\n');
-const csv = ['seed,mode,category,frames,label,' + FEATURE_NAMES.join(',')];
-for (const e of events) e.rows.forEach((r, i) => csv.push([e.seed, e.mode, e.category, e.frames, e.labels[i], ...r.map((v) => v.toFixed(5))].join(',')));
+const csv = ['seed,category,frames,label,' + FEATURE_NAMES.join(',')];
+for (const e of events) e.rows.forEach((r, i) => csv.push([e.seed, e.category, e.frames, e.labels[i], ...r.map((v) => v.toFixed(5))].join(',')));
 fs.writeFileSync(path.join(root, 'models/motion-fit-data.csv'), csv.join('\n') + '\n');
 console.table(model.fit.metrics);
 console.log({ blank, motion, seconds: model.fit.seconds, linearWeights: Object.fromEntries(FEATURE_NAMES.map((n, i) => [n, +fit.weights[i].toFixed(3)])) });

@@ -13,6 +13,7 @@ import { checkFrame, checkSameShape, makeGrey, type GreyFrame, type RgbFrame } f
 import { toLuma } from './luma.js';
 import { openClose3x3 } from './morphology.js';
 import { checkParams, SNR_SCALE, type EngineParams } from './params.js';
+import { deploymentBackground, medianAbsLumaDiff, type NeighbourFit } from './deployment-background.js';
 import { edgeContrast } from './edge-contrast.js';
 import { estimateShift, shiftReference, type Shift } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
@@ -26,9 +27,12 @@ import { blobFlow, trackFlow, type BlobFlow, type TrackFlow } from './flow/flow-
 
 export interface EventInput {
   frames: readonly RgbFrame[];
-  /** A background from neighbouring triggers of the same camera (their temporal median). Needed
-   *  for a single trigger; for a burst it adds a reference that shows a subject standing still
-   *  through the whole burst, which the burst's own median absorbs. */
+  /** Middle frames of neighbouring triggers of the same camera and light mode, from which a
+   *  deployment background is built (see deployment-background.ts). Needed for a single
+   *  trigger; for a burst it adds a reference that shows a subject standing still through the
+   *  whole burst, which the burst's own median absorbs. */
+  neighbours?: readonly RgbFrame[];
+  /** A ready background (used as is after alignment and gain), instead of `neighbours`. */
   background?: RgbFrame;
   /** 255 = analyse, 0 = ignore (data strip, drawn regions). */
   mask?: GreyFrame;
@@ -75,6 +79,10 @@ export interface EventAnalysis {
   heat: GreyFrame;
   /** Union of the cleaned masks over frames (1 = active). */
   activity: Uint8Array;
+  /** How each neighbour fitted the deployment background, when neighbours were given. */
+  neighbourFits?: NeighbourFit[];
+  /** Whether a background from other triggers took part (given, or built from neighbours). */
+  deploymentBackground: boolean;
 }
 
 function andMask(a: Uint8Array | undefined, b: Uint8Array): Uint8Array {
@@ -82,22 +90,6 @@ function andMask(a: Uint8Array | undefined, b: Uint8Array): Uint8Array {
   const out = new Uint8Array(b.length);
   for (let i = 0; i < b.length; i++) out[i] = a[i] && b[i] ? 255 : 0;
   return out;
-}
-
-function medianAbsLumaDiff(a: GreyFrame, b: GreyFrame, valid?: Uint8Array): number {
-  const hist = new Uint32Array(256);
-  let n = 0;
-  for (let i = 0; i < a.data.length; i++) {
-    if (valid && !valid[i]) continue;
-    hist[Math.abs(a.data[i] - b.data[i])]++;
-    n++;
-  }
-  let acc = 0;
-  for (let v = 0; v < 256; v++) {
-    acc += hist[v];
-    if (acc >= n / 2) return v + 0.5 - (acc - n / 2) / Math.max(1, hist[v]); // interpolated in the bin
-  }
-  return 255;
 }
 
 export function analyseEvent(input: EventInput): EventAnalysis {
@@ -111,6 +103,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
   const { width, height } = frames[0];
   const n = frames.length;
   if (input.background) checkSameShape('frames[0]', frames[0], 'background', input.background);
+  if (input.background && input.neighbours?.length) throw invalidArgument('background', 'absent when neighbours are given', 'a frame');
   if (input.mask) checkSameShape('frames[0]', { ...frames[0], channels: 1 }, 'mask', input.mask);
   if (input.restless && input.restless.length !== width * height) {
     throw invalidArgument('restless.length', String(width * height), input.restless.length);
@@ -145,11 +138,34 @@ export function analyseEvent(input: EventInput): EventAnalysis {
   let background: RgbFrame | undefined;
   if (n >= 3) background = temporalMedian(work);
   let deployment: RgbFrame | undefined;
+  let neighbourFits: NeighbourFit[] | undefined;
   if (input.background) {
     const a = align(input.background, refLuma);
     deployment = applyGainOffset(a.frame, fitGainOffset(work[ref], a.frame, valid));
-    if (n === 1) background = deployment;
+  } else if (input.neighbours?.length) {
+    // The yardstick: how much consecutive frames of this trigger disagree once aligned and
+    // normalised (a single image has none; its best neighbour serves).
+    let own: number | undefined;
+    if (n >= 2) {
+      const lumas = work.map(toLuma);
+      const d: number[] = [];
+      for (let k = 1; k < n; k++) d.push(medianAbsLumaDiff(lumas[k], lumas[k - 1], valid));
+      own = d.sort((x, y) => x - y)[d.length >> 1];
+    }
+    const db = deploymentBackground(work[ref], input.neighbours, {
+      mask: valid ? { width, height, channels: 1, data: valid } : undefined,
+      ownDisagreement: own,
+      minKept: n === 1 ? 1 : 3,
+      alignMinConfidence: params.alignMinConfidence,
+      referenceSpectrum: refSpectrum,
+    });
+    neighbourFits = db.fits;
+    if (db.frame) {
+      deployment = db.frame;
+      if (db.valid) valid = andMask(valid, db.valid);
+    }
   }
+  if (n === 1 && deployment) background = deployment;
   const minArea = Math.max(4, Math.round(params.minBlobFraction * width * height));
   const heat = makeGrey(width, height);
   const activity = new Uint8Array(width * height);
@@ -165,7 +181,8 @@ export function analyseEvent(input: EventInput): EventAnalysis {
   for (let k = 0; k < n; k++) {
     const parts: Array<{ snr: GreyFrame; sigma: number }> = [];
     if (background) parts.push(toSnr(maxChannelChange(work[k], background), params.minNoise, valid, input.restless));
-    if (deployment && deployment !== background) parts.push(toSnr(maxChannelChange(work[k], deployment), params.minNoise, valid, input.restless));
+    const deploymentPart = deployment && deployment !== background ? parts.length : -1;
+    if (deploymentPart >= 0) parts.push(toSnr(maxChannelChange(work[k], deployment!), params.minNoise, valid, input.restless));
     if (k > 0) parts.push(toSnr(maxChannelChange(work[k], work[k - 1]), params.minNoise, valid, input.restless));
     else if (n === 2) parts.push(toSnr(maxChannelChange(work[0], work[1]), params.minNoise, valid, input.restless));
     if (parts.length === 0) {
@@ -186,6 +203,10 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     const ref = background ?? deployment ?? work[k > 0 ? k - 1 : 1];
     for (const b of blobs) {
       b.unexplained = unexplainedShare(work[k], ref, comps.labels, b, parts[0].sigma);
+      // A subject standing still through a burst is explained by the burst's own median (it is
+      // in it); only the deployment background shows it. The blob is as unexplained as the
+      // reference that explains it least.
+      if (deploymentPart >= 0) b.unexplained = Math.max(b.unexplained, unexplainedShare(work[k], deployment!, comps.labels, b, parts[deploymentPart].sigma));
       b.edge = edgeContrast(snr, comps.labels, b);
     }
     let active = 0;
@@ -224,7 +245,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     blobsPerFrame: results.reduce((a, r) => a + r.blobs.length, 0) / n,
     maxShift: Math.max(...results.map((r) => (r.compensated ? Math.hypot(r.shift.dx, r.shift.dy) : 0))),
     maxGainStep: Math.max(...results.map((r) => Math.max(...r.gain.map((g) => Math.abs(g - 1))))),
-    noReference: n === 1 && !input.background,
+    noReference: n === 1 && !deployment,
   };
-  return { width, height, frames: results, tracks, trackFeatures: feats, trackFlows, context, heat, activity };
+  return { width, height, frames: results, tracks, trackFeatures: feats, trackFlows, context, heat, activity, neighbourFits, deploymentBackground: deployment !== undefined };
 }

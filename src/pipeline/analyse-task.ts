@@ -12,7 +12,6 @@ import { detectDataStripInFrames, ignoreMask } from '../kernels/data-strip.js';
 import type { RgbFrame } from '../kernels/frame.js';
 import { CLIP_MODEL, MOTION_MODEL } from '../kernels/model.js';
 import { eventFeatureRows, scoreEvent, verdictFor, FEATURE_NAMES, type VerdictName } from '../kernels/score.js';
-import { temporalMedian } from '../kernels/temporal-median.js';
 import { decodeImage } from '../media/decode-image.js';
 import { decodeVideo } from '../media/decode-video.js';
 import { MediaErrorCode } from '../media/media-errors.js';
@@ -27,10 +26,10 @@ export interface EventTask {
   eventId: string;
   kind: 'burst' | 'single' | 'clip';
   files: TaskFile[];
-  /** For a single image: middle frames of neighbouring events of the same camera and light
-   *  mode, whose temporal median is its background. Bursts get none: their own median is a
-   *  cleaner reference than frames of other triggers (which hold animals, other light, other
-   *  sway), and such a mixed background read as motion in empty bursts of the sample media. */
+  /** Middle frames of neighbouring image events of the same camera and light mode, from which
+   *  the engine builds a deployment background (aligned, gain-fitted, disagreeing ones dropped,
+   *  per-pixel median): a single image's only reference, and for a burst the one that shows a
+   *  subject standing still through all its frames. */
   neighbours: TaskFile[];
   width: number;
   height: number;
@@ -59,14 +58,16 @@ const failureOf = (display: string, e: unknown, stage: 'read' | 'partial' = 'rea
 
 /** A few recent neighbour decodes, since consecutive events share neighbours. */
 const neighbourCache = new Map<string, RgbFrame>();
+function rememberNeighbour(f: TaskFile, w: number, h: number, frame: RgbFrame): void {
+  neighbourCache.set(`${f.abs}@${w}x${h}`, frame);
+  if (neighbourCache.size > 32) neighbourCache.delete(neighbourCache.keys().next().value!);
+}
 async function decodeNeighbour(f: TaskFile, w: number, h: number): Promise<RgbFrame | undefined> {
-  const key = `${f.abs}@${w}x${h}`;
-  const hit = neighbourCache.get(key);
+  const hit = neighbourCache.get(`${f.abs}@${w}x${h}`);
   if (hit) return hit;
   try {
     const fr = await decodeImage(f.abs, f.display, w, h);
-    neighbourCache.set(key, fr);
-    if (neighbourCache.size > 32) neighbourCache.delete(neighbourCache.keys().next().value!);
+    rememberNeighbour(f, w, h, fr);
     return fr;
   } catch {
     return undefined; // a bad neighbour is that event's error, not this one's
@@ -93,6 +94,10 @@ async function runImages(task: EventTask): Promise<TaskOutcome> {
     }
   }
   if (frames.length === 0) return { ok: false, eventId: task.eventId, failures };
+  // Later events take this one's middle frame as a neighbour: keep it decoded.
+  const middle = task.files.length >> 1;
+  const at = kept.indexOf(middle);
+  if (at >= 0) rememberNeighbour(task.files[middle], task.width, task.height, frames[at]);
   const neighbours: RgbFrame[] = [];
   for (const n of task.neighbours) {
     const fr = await decodeNeighbour(n, task.width, task.height);
@@ -100,8 +105,7 @@ async function runImages(task: EventTask): Promise<TaskOutcome> {
   }
   const strip = detectDataStripInFrames(frames.length >= 3 ? frames : [...frames, ...neighbours]);
   const mask = strip.top || strip.bottom ? ignoreMask(task.width, task.height, strip) : undefined;
-  const background = neighbours.length ? temporalMedian(neighbours) : undefined;
-  const a = analyseEvent({ frames, background, mask, flow: task.flow });
+  const a = analyseEvent({ frames, neighbours, mask, flow: task.flow });
   const s = scoreEvent(MOTION_MODEL, a);
   const best = s.bestTrack >= 0 ? a.tracks[s.bestTrack] : undefined;
   const rows = eventFeatureRows(a);
@@ -126,7 +130,10 @@ async function runImages(task: EventTask): Promise<TaskOutcome> {
     },
     detail: {
       strip,
+      // Neighbours offered and how each fitted (kept ones make the deployment background).
       background: neighbours.length,
+      deployment: a.deploymentBackground,
+      neighbours: (a.neighbourFits ?? []).map((f) => ({ kept: f.kept, disagreement: round(f.disagreement, 2), shift: { dx: round(f.shift.dx, 2), dy: round(f.shift.dy, 2) } })),
       frames: a.frames.map((f, k) => ({
         position: kept[k],
         shift: { dx: round(f.shift.dx, 2), dy: round(f.shift.dy, 2), confidence: round(f.shift.confidence, 2) },

@@ -120,7 +120,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
       for (const [dep, media] of byDeployment) {
         const byId = new Map(media.map((m) => [m.id, m]));
         const groups = groupEvents(media.map((m) => ({ mediaId: m.id, rel: m.rel_path, kind: m.kind, sortMs: m.capture_sort_ms })), gap, MAX_EVENT_FRAMES);
-        const neighbourMap = singleNeighbours(groups.filter((g) => g.kind !== 'clip'), byId);
+        const neighbourMap = imageNeighbours(groups.filter((g) => g.kind !== 'clip'), byId);
         for (const g of groups) {
           const items = g.items.map((it) => byId.get(it.mediaId)!);
           const id = eventIdOf(dep, items[0].rel_path);
@@ -200,10 +200,10 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
 
 type StoredMedia = MediaRow & { id: number };
 
-/** For each single image (a burst is its own reference): middle media of the nearest image
- *  events (two before, two after, more on one side when the other runs out) with the same light
- *  mode: the deployment background for that event. One pass per deployment. */
-function singleNeighbours(groups: Group[], byId: Map<number, StoredMedia>): Map<Group, StoredMedia[]> {
+/** For each image event: middle media of the nearest image events (two before, two after,
+ *  more on one side when the other runs out) with the same light mode, from which the engine
+ *  builds that event's deployment background. One pass per deployment. */
+function imageNeighbours(groups: Group[], byId: Map<number, StoredMedia>): Map<Group, StoredMedia[]> {
   const mid = (x: Group): StoredMedia => byId.get(x.items[x.items.length >> 1].mediaId)!;
   const byLight = new Map<string | null, Group[]>();
   for (const g of groups) {
@@ -215,7 +215,6 @@ function singleNeighbours(groups: Group[], byId: Map<number, StoredMedia>): Map<
   const out = new Map<Group, StoredMedia[]>();
   for (const same of byLight.values()) {
     same.forEach((g, k) => {
-      if (g.kind !== 'single') return;
       const near: StoredMedia[] = [];
       for (let d = 1; near.length < 4 && (k - d >= 0 || k + d < same.length); d++) {
         if (k - d >= 0) near.push(mid(same[k - d]));

@@ -79,7 +79,12 @@ export interface ActivityWindow {
 /** `detail` of a burst or single image (pipeline/analyse-task.ts). */
 export interface ImageDetail {
   strip: { top: number; bottom: number };
+  /** Neighbouring triggers offered as the deployment background. */
   background: number;
+  /** Whether a deployment background was built from them (absent in ledgers scanned before it
+   *  was recorded), and how each neighbour fitted. */
+  deployment?: boolean;
+  neighbours?: Array<{ kept: boolean; disagreement: number; shift: { dx: number; dy: number } }>;
   frames: Array<{ position: number; shift: { dx: number; dy: number; confidence: number }; compensated: boolean; blobs: BlobBox[] }>;
   bestTrack: Array<BlobBox & { position: number }>;
 }

@@ -140,6 +140,11 @@ describe('review app in Chromium', () => {
       await page.keyboard.press('ArrowRight');
     }
     expect(new Set(seen).size).toBe(burst.n);
+    // What the burst was compared with besides its own frames, as the ledger recorded it.
+    const detail = JSON.parse(ledgerRows<{ detail: string }>('SELECT detail FROM analyses WHERE event_id = ? ORDER BY id DESC LIMIT 1', burst.id)[0].detail) as { background: number; deployment: boolean; neighbours: Array<{ kept: boolean }> };
+    const kept = detail.neighbours.filter((x) => x.kept).length;
+    expect(detail.background).toBeGreaterThan(0);
+    expect(await text('[data-testid=background-note]')).toBe(detail.deployment ? `compared with ${kept} of ${detail.background} neighbouring triggers` : `neighbouring triggers too unlike this one (${kept} of ${detail.background} matched): an animal that never moved cannot show`);
     await page.keyboard.press('ArrowRight'); // past the last frame: stays
     expect(await text('[data-testid=frame-counter]')).toBe(`frame ${burst.n} of ${burst.n}`);
     expect(await page.locator('[data-testid=blob-layer]').count()).toBe(1);

@@ -6,7 +6,6 @@
 import { analyseEvent, type EventAnalysis } from '../../src/kernels/analyse-event.js';
 import { detectDataStripInFrames, ignoreMask } from '../../src/kernels/data-strip.js';
 import { eventFeatureRows, scoreEvent, type MotionModel, type EventScore } from '../../src/kernels/score.js';
-import { temporalMedian } from '../../src/kernels/temporal-median.js';
 import type { CategoryName } from './categories.js';
 import { renderScene, type Scene } from './render.js';
 
@@ -21,17 +20,15 @@ export interface LabelledEvent {
 }
 
 /**
- * Analyses a scene as a scan does (src/pipeline/analyse-task.ts): a burst is its own reference;
- * a single image gets the temporal median of neighbouring triggers as its background. The model
- * is fitted and judged on exactly what the product will compute. `withDeploymentBackground`
- * also gives bursts that background (clean neighbours a real scan does not have; for
- * experiments only).
+ * Analyses a scene as a scan does (src/pipeline/analyse-task.ts): the event's frames with the
+ * middle frames of neighbouring triggers of the same camera, from which the engine builds a
+ * deployment background (the neighbours are not clean: see renderNeighbours). The model is
+ * fitted and judged on exactly what the product will compute.
  */
-export function analyseScene(scene: Scene, withDeploymentBackground = false): LabelledEvent {
+export function analyseScene(scene: Scene): LabelledEvent {
   const strip = detectDataStripInFrames(scene.frames);
   const mask = strip.top || strip.bottom ? ignoreMask(scene.width, scene.height, strip) : undefined;
-  const background = scene.neighbours.length && (withDeploymentBackground || scene.frames.length === 1) ? temporalMedian(scene.neighbours) : undefined;
-  const analysis = analyseEvent({ frames: scene.frames, background, mask });
+  const analysis = analyseEvent({ frames: scene.frames, neighbours: scene.neighbours, mask });
   const rows = eventFeatureRows(analysis);
   const labels = analysis.tracks.map((t) =>
     t.points.some((p) => {

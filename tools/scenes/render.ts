@@ -246,6 +246,50 @@ function drawDot(f: RgbFrame, cx: number, cy: number, r: number, a: number): voi
   }
 }
 
+/**
+ * Middle frames of the neighbouring triggers a scan would pass in: the same camera minutes or
+ * hours apart, so not clean. Each has its own exposure and colour balance, its own smooth
+ * shading (the sun moved, a cloud), and in one case of five a visitor. A subject that lingers
+ * or sits at the edge is still there minutes later, at about the same place (the hard case: a
+ * median of neighbours that mostly hold it hides it); a crossing one is long gone, so its
+ * neighbours, like those of an empty scene, get some other animal crossing. Drawn from their
+ * own random stream, so the trigger's frames do not change with them.
+ */
+function renderNeighbours(req: SceneRequest, r: Renderer, light: Light, width: number, height: number, duration: number, frameRng: Rng): RgbFrame[] {
+  const nrng = makeRng(req.seed * 104_729 + 11 + (req.event ?? 0) * 389);
+  const out: RgbFrame[] = [];
+  for (let k = 0; k < 4; k++) {
+    let rr = r;
+    let subjectT = 10 + k * 37.3;
+    let show = false;
+    if (nrng.chance(0.2)) {
+      show = true;
+      if (r.subject && r.subject.motion !== 'cross') {
+        subjectT = duration / 2 + nrng.range(5, 120) * (nrng.chance(0.5) ? 1 : -1);
+      } else {
+        const size = nrng.range(0.06, 0.3) * width;
+        rr = { ...r, subject: makeSubject(nrng, width, height, { kind: light === 'water' ? 'fish' : 'land', size, motion: 'cross', night: light === 'ir', duration: 1 }) };
+        subjectT = nrng.range(0.2, 0.8);
+      }
+    }
+    const frame = renderFrame(rr, 10 + k * 37.3, show, frameRng, subjectT).frame;
+    const exposure = Math.exp(0.12 * nrng.normal());
+    const tint = [0, 1, 2].map(() => (light === 'ir' ? 1 : 1 + 0.03 * nrng.normal()));
+    const shadeAmp = nrng.range(0, 0.12);
+    const shade = valueNoise(nrng, nrng.range(60, 160) * (width / 320), 1);
+    const d = frame.data;
+    for (let y = 0; y < height; y++) {
+      for (let x = 0; x < width; x++) {
+        const g = exposure * (1 + shadeAmp * (2 * shade(x, y) - 1));
+        const p = (y * width + x) * 3;
+        for (let c = 0; c < 3; c++) d[p + c] = Math.max(0, Math.min(255, Math.round(d[p + c] * g * tint[c])));
+      }
+    }
+    out.push(frame);
+  }
+  return out;
+}
+
 export interface SceneRequest {
   seed: number;
   category: CategoryName;
@@ -291,9 +335,7 @@ export function renderScene(req: SceneRequest): Scene {
     frames.push(frame);
     subjectMasks.push(mask);
   }
-  // Neighbouring empty triggers of the same camera, minutes apart: same world, other moments.
-  const neighbours: RgbFrame[] = [];
-  for (let k = 0; k < 4; k++) neighbours.push(renderFrame(r, 10 + k * 37.3, false, frameRng).frame);
+  const neighbours = renderNeighbours(req, r, light, width, height, duration, frameRng);
   if (req.strip) {
     const clock = rng.int(0, 86399);
     frames.forEach((f, i) => paintStrip(f, req.strip!, `${clock + Math.floor(times[i])}${i + 1}${n}`));

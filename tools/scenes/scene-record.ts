@@ -10,9 +10,6 @@ import { renderScene, type SceneRequest } from './render.js';
 
 export interface SceneRecord {
   seed: number;
-  /** 'scan': analysed as a scan analyses it (what the product computes); 'clean': a burst also
-   *  given its clean neighbours as background (extra training data, never used for thresholds). */
-  mode: 'scan' | 'clean';
   category: CategoryName;
   animal: boolean;
   frames: number;
@@ -21,16 +18,13 @@ export interface SceneRecord {
   noReference: boolean;
 }
 
-function toRecord(e: LabelledEvent, mode: SceneRecord['mode']): SceneRecord {
-  return { seed: e.seed, mode, category: e.category, animal: e.animal, frames: e.frames, rows: e.rows, labels: e.labels, noReference: e.analysis.context.noReference };
+function toRecord(e: LabelledEvent): SceneRecord {
+  return { seed: e.seed, category: e.category, animal: e.animal, frames: e.frames, rows: e.rows, labels: e.labels, noReference: e.analysis.context.noReference };
 }
 
-/** The scene as a scan analyses it, and for a burst also with the clean background. */
-export function sceneRecords(req: SceneRequest): SceneRecord[] {
-  const scene = renderScene(req);
-  const out = [toRecord(analyseScene(scene), 'scan')];
-  if (scene.frames.length > 1 && scene.neighbours.length) out.push(toRecord(analyseScene(scene, true), 'clean'));
-  return out;
+/** The scene as a scan analyses it. */
+export function sceneRecord(req: SceneRequest): SceneRecord {
+  return toRecord(analyseScene(renderScene(req)));
 }
 
 export const recordScore = (m: MotionModel, r: SceneRecord) => scoreEventRows(m, r.rows, r.noReference);

@@ -21,6 +21,7 @@ export interface Subject {
   colour: number[];
   texture: Field;
   contrast: number;
+  motion: SubjectPlan['motion'];
   /** Position of the body centre at time t (s), in frame pixels. */
   at: (t: number) => { x: number; y: number };
 }
@@ -87,7 +88,7 @@ export function makeSubject(rng: Rng, width: number, height: number, plan: Subje
           ? { x: width - inset - slow * t, y: along * height }
           : { x: along * width + slow * t, y: height - inset };
   }
-  return { parts, colour, texture: valueNoise(rng, Math.max(1.5, L / 8), 3), contrast: rng.range(0.15, 0.45), at };
+  return { parts, colour, texture: valueNoise(rng, Math.max(1.5, L / 8), 3), contrast: rng.range(0.15, 0.45), motion: plan.motion, at };
 }
 
 /** Coverage (0..1) and colour of the subject at pixel (x, y) and time t. */

@@ -73,8 +73,18 @@ export function BurstView({ event, heat, bindActions }: Props) {
         {analysed && <span>{analysed.blobs.length} change blob{analysed.blobs.length === 1 ? '' : 's'}</span>}
         {analysed?.compensated && <span>camera shift corrected ({analysed.shift.dx}, {analysed.shift.dy}) px</span>}
         {detail.strip.top + detail.strip.bottom > 0 && <span>data strip ignored</span>}
-        {event.kind === 'single' && <span>{detail.background ? `compared with ${detail.background} neighbouring triggers` : 'no neighbouring trigger to compare with'}</span>}
+        <span data-testid="background-note">{backgroundNote(event.kind, detail)}</span>
       </div>
     </div>
   );
+}
+
+/** What this event was compared with besides its own frames, said plainly: without a
+ *  background from other triggers, an animal that never moved cannot show. */
+function backgroundNote(kind: string, d: ImageDetail): string {
+  const kept = d.neighbours?.filter((x) => x.kept).length;
+  if (d.background === 0) return kind === 'single' ? 'no neighbouring trigger to compare with' : 'no neighbouring trigger: an animal that never moved in this burst cannot show';
+  if (d.deployment === undefined) return `compared with ${d.background} neighbouring triggers`;
+  if (d.deployment) return `compared with ${kept} of ${d.background} neighbouring triggers`;
+  return `neighbouring triggers too unlike this one (${kept ?? 0} of ${d.background} matched): an animal that never moved cannot show`;
 }

@@ -1,0 +1,143 @@
+/**
+ * A deployment background: what the camera sees with nobody there, built from other triggers of
+ * the same camera (the caller passes a middle frame of each). A burst's own median absorbs a
+ * subject that stands still through the whole burst; this reference does not.
+ *
+ * Other triggers differ from this one in more than the subject: the light (minutes or hours
+ * apart), a nudged camera, a visitor of their own. So each neighbour is first brought onto the
+ * reference frame: aligned by phase correlation (kept only where it makes the frames agree
+ * better), then mapped by a robust per-channel gain and offset. Its disagreement with the
+ * reference is the median absolute luma difference over valid pixels. A neighbour that
+ * disagrees far more than the trigger's own frames do with each other (other light mode,
+ * camera moved, a scene that changed) is dropped. The per-pixel median of the rest removes a
+ * visitor that is in fewer than half of them.
+ *
+ * Output: uint8 RGB like the inputs, plus the valid mask (0 where a shift left no data) and a
+ * record of each neighbour's fit.
+ */
+import { invalidArgument } from '../shared/errors.js';
+import { checkInteger, checkNumber } from '../shared/validate.js';
+import { checkFrame, checkSameShape, type GreyFrame, type RgbFrame } from './frame.js';
+import { toLuma } from './luma.js';
+import { estimateShift, shiftReference, type Shift, type ShiftReference } from './phase-correlate.js';
+import { applyGainOffset, fitGainOffset } from './photometric.js';
+import { temporalMedian } from './temporal-median.js';
+import { translateBilinear } from './translate.js';
+
+export interface NeighbourFit {
+  shift: Shift;
+  compensated: boolean;
+  /** Median absolute luma difference to the reference after alignment and gain (grey levels). */
+  disagreement: number;
+  kept: boolean;
+}
+
+export interface DeploymentBackground {
+  /** Absent when fewer than `minKept` neighbours passed. */
+  frame?: RgbFrame;
+  /** 255 where every shifted neighbour had data (and the mask allows); undefined when none was shifted. */
+  valid?: Uint8Array;
+  fits: NeighbourFit[];
+}
+
+export interface DeploymentOptions {
+  /** 255 = compare, 0 = ignore (data strip, drawn regions). */
+  mask?: GreyFrame;
+  /** How much the trigger's own frames disagree with each other (same measure): the yardstick
+   *  a neighbour is judged by. Absent (a single image), the best neighbour is the yardstick. */
+  ownDisagreement?: number;
+  /** Fewest neighbours that must pass to build a background at all. A burst needs 3: the median
+   *  of 2 is their mean and keeps half of a visitor either holds. */
+  minKept?: number;
+  /** Phase-correlation confidence below which a shift is not compensated. */
+  alignMinConfidence?: number;
+  /** A prepared reference (see shiftReference), when the caller has one already. */
+  referenceSpectrum?: ShiftReference;
+}
+
+/**
+ * A neighbour is kept while it disagrees no more than twice the yardstick plus one grey level.
+ * Twice: the median absolute difference of two frames grows with their noise, and a neighbour
+ * of the same camera and light mode is expected within a factor of two of the trigger's own
+ * frame-to-frame level (our choice, not fitted). The grey level covers 8-bit rounding on very
+ * clean frames, where the yardstick is near zero.
+ */
+const TOLERANCE_FACTOR = 2;
+const TOLERANCE_LEVELS = 1;
+
+/** Median absolute difference of two luma images over valid pixels, interpolated in its bin. */
+export function medianAbsLumaDiff(a: GreyFrame, b: GreyFrame, valid?: Uint8Array): number {
+  const hist = new Uint32Array(256);
+  let n = 0;
+  for (let i = 0; i < a.data.length; i++) {
+    if (valid && !valid[i]) continue;
+    hist[Math.abs(a.data[i] - b.data[i])]++;
+    n++;
+  }
+  let acc = 0;
+  for (let v = 0; v < 256; v++) {
+    acc += hist[v];
+    if (acc >= n / 2) return v + 0.5 - (acc - n / 2) / Math.max(1, hist[v]);
+  }
+  return 255;
+}
+
+function andValid(a: Uint8Array | undefined, b: Uint8Array): Uint8Array {
+  if (!a) return b;
+  const out = new Uint8Array(b.length);
+  for (let i = 0; i < b.length; i++) out[i] = a[i] && b[i] ? 255 : 0;
+  return out;
+}
+
+export function deploymentBackground(reference: RgbFrame, neighbours: readonly RgbFrame[], options: DeploymentOptions = {}): DeploymentBackground {
+  checkFrame('reference', reference, 3);
+  if (!Array.isArray(neighbours)) throw invalidArgument('neighbours', 'array of frames', neighbours);
+  neighbours.forEach((f, i) => {
+    checkFrame(`neighbours[${i}]`, f, 3);
+    checkSameShape('reference', reference, `neighbours[${i}]`, f);
+  });
+  if (options.mask) checkSameShape('reference', { ...reference, channels: 1 }, 'mask', options.mask);
+  const minKept = options.minKept ?? 1;
+  checkInteger('minKept', minKept, 1, 1000);
+  const minConfidence = options.alignMinConfidence ?? 0.15;
+  checkNumber('alignMinConfidence', minConfidence, 0, 1);
+  if (options.ownDisagreement !== undefined) checkNumber('ownDisagreement', options.ownDisagreement, 0, 255);
+
+  const mask = options.mask?.data;
+  const refLuma = toLuma(reference);
+  const spectrum = options.referenceSpectrum ?? shiftReference(refLuma);
+  const onReference = (frame: RgbFrame, valid: Uint8Array | undefined) => {
+    const normalised = applyGainOffset(frame, fitGainOffset(reference, frame, valid));
+    return { normalised, disagreement: medianAbsLumaDiff(refLuma, toLuma(normalised), valid) };
+  };
+  const fitted = neighbours.map((nb) => {
+    const shift = estimateShift(spectrum, toLuma(nb));
+    let valid: Uint8Array | undefined = mask;
+    let compensated = false;
+    let best = onReference(nb, mask);
+    const plausible = shift.confidence >= minConfidence && Math.hypot(shift.dx, shift.dy) >= 0.3;
+    if (plausible) {
+      const t = translateBilinear(nb, shift.dx, shift.dy);
+      const tValid = andValid(mask, t.valid.data);
+      // A shift is kept only if it makes the frames agree better where most pixels are (after
+      // the gain fit: a neighbour's exposure differs far more than a burst frame's): otherwise
+      // it was pulled by something that moved, not by the camera.
+      const moved = onReference(t.frame, tValid);
+      if (moved.disagreement < 0.9 * best.disagreement) {
+        best = moved;
+        valid = tValid;
+        compensated = true;
+      }
+    }
+    return { normalised: best.normalised, valid, fit: { shift, compensated, disagreement: best.disagreement, kept: false } as NeighbourFit };
+  });
+  const yardstick = options.ownDisagreement ?? Math.min(255, ...fitted.map((f) => f.fit.disagreement));
+  const limit = TOLERANCE_FACTOR * yardstick + TOLERANCE_LEVELS;
+  const kept = fitted.filter((f) => f.fit.disagreement <= limit);
+  for (const f of kept) f.fit.kept = true;
+  const fits = fitted.map((f) => f.fit);
+  if (kept.length < minKept || kept.length === 0) return { fits };
+  let valid: Uint8Array | undefined;
+  for (const f of kept) if (f.fit.compensated && f.valid) valid = andValid(valid, f.valid);
+  return { frame: temporalMedian(kept.map((f) => f.normalised)), valid, fits };
+}
