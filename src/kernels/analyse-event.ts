@@ -1,7 +1,7 @@
 /**
  * The per-event chain for a burst or a single trigger:
  * align (phase correlation) -> normalise (gain/offset) -> background (temporal median, or the
- * caller's background for a single image) -> change against background and previous frame ->
+ * caller's background for a single image) -> change against the backgrounds and neighbouring frames ->
  * noise-scaled SNR -> hysteresis -> 3x3 open/close -> components -> tracks -> features.
  * Pure: frames in, numbers out. The caller decodes and chooses the analysis size.
  */
@@ -17,11 +17,11 @@ import { deploymentBackground, medianAbsLumaDiff, type NeighbourFit } from './de
 import { edgeContrast } from './edge-contrast.js';
 import { estimateShift, shiftReference, type Shift } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
-import { maxImage, orMask, toSnr } from './snr-image.js';
+import { maxImage, minImage, orMask, toSnr } from './snr-image.js';
 import { temporalMedian } from './temporal-median.js';
 import { thresholdHysteresis } from './threshold.js';
 import { linkTracks, trackFeatures, type Track, type TrackFeatures } from './tracks.js';
-import { translateBilinear } from './translate.js';
+import { translateBilinear, translateValidity } from './translate.js';
 import { farnebackFlow } from './flow/farneback.js';
 import { blobFlow, trackFlow, type BlobFlow, type TrackFlow } from './flow/flow-features.js';
 
@@ -126,7 +126,8 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     if (medianAbsLumaDiff(luma, toLuma(t.frame), t.valid.data) >= 0.9 * medianAbsLumaDiff(luma, toLuma(f))) {
       return { frame: f, shift, compensated: false };
     }
-    valid = andMask(valid, t.valid.data);
+    // The frame's ignored regions (its data strip) move with it; so does the uncovered edge.
+    valid = andMask(valid, translateValidity(width, height, shift.dx, shift.dy, ignore));
     return { frame: t.frame, shift, compensated: true };
   };
   for (let k = 0; k < n; k++) {
@@ -178,13 +179,33 @@ export function analyseEvent(input: EventInput): EventAnalysis {
   const lo = params.growSigmas * SNR_SCALE;
   const blobsPerFrame: Blob[][] = [];
   const labelsPerFrame: Int32Array[] = [];
+  // Change between two frames of the event in sigmas; symmetric, so each pair is made once.
+  const pairs = new Map<number, { snr: GreyFrame; sigma: number }>();
+  const pairSnr = (a: number, b: number): { snr: GreyFrame; sigma: number } => {
+    const key = Math.min(a, b) * n + Math.max(a, b);
+    let p = pairs.get(key);
+    if (!p) pairs.set(key, (p = toSnr(maxChannelChange(work[a], work[b]), params.minNoise, valid, input.restless)));
+    return p;
+  };
   for (let k = 0; k < n; k++) {
     const parts: Array<{ snr: GreyFrame; sigma: number }> = [];
     if (background) parts.push(toSnr(maxChannelChange(work[k], background), params.minNoise, valid, input.restless));
     const deploymentPart = deployment && deployment !== background ? parts.length : -1;
     if (deploymentPart >= 0) parts.push(toSnr(maxChannelChange(work[k], deployment!), params.minNoise, valid, input.restless));
-    if (k > 0) parts.push(toSnr(maxChannelChange(work[k], work[k - 1]), params.minNoise, valid, input.restless));
-    else if (n === 2) parts.push(toSnr(maxChannelChange(work[0], work[1]), params.minNoise, valid, input.restless));
+    // Frame-to-frame change, as a double difference: frame k against its two nearest other
+    // frames, a pixel counting only as far as it differs from both. The change against one
+    // other frame also lights up where the subject was in that frame (the uncovered
+    // background), a second copy of the subject that breaks its track whenever it moves more
+    // than its own size between frames; the double difference keeps only what frame k holds
+    // (three-frame differencing, common practice in video surveillance). With two frames there
+    // is no second frame: the deployment background stands in, or the plain difference serves.
+    if (n >= 3) {
+      const [p, q] = k === 0 ? [1, 2] : k === n - 1 ? [n - 2, n - 3] : [k - 1, k + 1];
+      const a = pairSnr(k, p), b = pairSnr(k, q);
+      parts.push({ snr: minImage(a.snr, b.snr), sigma: Math.max(a.sigma, b.sigma) });
+    } else if (n === 2 && deploymentPart < 0) {
+      parts.push(pairSnr(0, 1));
+    }
     if (parts.length === 0) {
       blobsPerFrame.push([]);
       labelsPerFrame.push(new Int32Array(width * height));

@@ -22,7 +22,7 @@ import { toLuma } from './luma.js';
 import { estimateShift, shiftReference, type Shift, type ShiftReference } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
 import { temporalMedian } from './temporal-median.js';
-import { translateBilinear } from './translate.js';
+import { translateBilinear, translateValidity } from './translate.js';
 
 export interface NeighbourFit {
   shift: Shift;
@@ -118,7 +118,8 @@ export function deploymentBackground(reference: RgbFrame, neighbours: readonly R
     const plausible = shift.confidence >= minConfidence && Math.hypot(shift.dx, shift.dy) >= 0.3;
     if (plausible) {
       const t = translateBilinear(nb, shift.dx, shift.dy);
-      const tValid = andValid(mask, t.valid.data);
+      // The neighbour's own ignored regions (its data strip) move with it.
+      const tValid = andValid(mask, translateValidity(reference.width, reference.height, shift.dx, shift.dy, mask));
       // A shift is kept only if it makes the frames agree better where most pixels are (after
       // the gain fit: a neighbour's exposure differs far more than a burst frame's): otherwise
       // it was pulled by something that moved, not by the camera.

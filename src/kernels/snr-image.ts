@@ -34,3 +34,9 @@ export function orMask(a: GreyFrame, b: GreyFrame): GreyFrame {
   for (let i = 0; i < out.data.length; i++) out.data[i] = a.data[i] | b.data[i];
   return out;
 }
+
+export function minImage(a: GreyFrame, b: GreyFrame): GreyFrame {
+  const out = makeGrey(a.width, a.height);
+  for (let i = 0; i < out.data.length; i++) out.data[i] = a.data[i] < b.data[i] ? a.data[i] : b.data[i];
+  return out;
+}

@@ -3,6 +3,7 @@
  * interpolation: out(x, y) = src(x + dx, y + dy). Pixels whose source lies outside the frame get
  * validity 0, so differencing ignores the strip the camera shake uncovered.
  */
+import { invalidArgument } from '../shared/errors.js';
 import { checkNumber } from '../shared/validate.js';
 import { checkFrame, makeGrey, type Frame, type GreyFrame } from './frame.js';
 
@@ -40,4 +41,33 @@ export function translateBilinear<T extends Frame>(src: T, dx: number, dy: numbe
     }
   }
   return { frame: { ...src, data: out }, valid };
+}
+
+/**
+ * Where a frame shifted by translateBilinear(src, dx, dy) still holds analysable data: 255 where
+ * the source lies inside the frame and all four source pixels are analysable in `mask` (255 =
+ * analyse), 0 elsewhere. Without the mask, only the frame's edges count. An ignored region (a
+ * camera's data strip) moves with the frame it belongs to: a shift of a pixel brings the strip's
+ * edge into the analysed area unless the mask moves too.
+ */
+export function translateValidity(width: number, height: number, dx: number, dy: number, mask?: Uint8Array): Uint8Array {
+  checkNumber('dx', dx, -width, width);
+  checkNumber('dy', dy, -height, height);
+  if (mask && mask.length !== width * height) throw invalidArgument('mask.length', String(width * height), mask.length);
+  const out = new Uint8Array(width * height);
+  for (let y = 0; y < height; y++) {
+    const sy = y + dy;
+    if (sy < 0 || sy > height - 1) continue;
+    const y0 = Math.floor(sy);
+    const y1 = Math.min(height - 1, y0 + 1);
+    for (let x = 0; x < width; x++) {
+      const sx = x + dx;
+      if (sx < 0 || sx > width - 1) continue;
+      const x0 = Math.floor(sx);
+      const x1 = Math.min(width - 1, x0 + 1);
+      if (mask && !(mask[y0 * width + x0] && mask[y0 * width + x1] && mask[y1 * width + x0] && mask[y1 * width + x1])) continue;
+      out[y * width + x] = 255;
+    }
+  }
+  return out;
 }

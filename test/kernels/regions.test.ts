@@ -6,6 +6,10 @@ import { addActivity, makeRestlessMap, restlessWeights } from '../../src/kernels
 import { analyseEvent } from '../../src/kernels/analyse-event.js';
 import { renderScene } from '../../tools/scenes/render.js';
 import { Category } from '../../tools/scenes/categories.js';
+import { paintStrip } from '../../tools/scenes/data-strip.js';
+import { makeRng } from '../../tools/scenes/random.js';
+import { bumpField } from '../../tools/scenes/texture.js';
+import { translateValidity } from '../../src/kernels/translate.js';
 
 describe('data strip detection', () => {
   it.each([
@@ -78,5 +82,41 @@ describe('restless-pixel map', () => {
     const before = analyseEvent({ frames: last.frames }).context.activeFraction;
     const after = analyseEvent({ frames: last.frames, restless }).context.activeFraction;
     expect(after).toBeLessThan(before * 0.7);
+  });
+});
+
+describe('an ignored strip moves with a shaken frame', () => {
+  // Ground truth from construction: a still textured place seen by a camera that shook by known
+  // whole and sub-pixel amounts, a data strip that changes every frame painted on each frame.
+  // Once the shake is compensated nothing is left to find; the strip's edge, shifted into the
+  // analysed rows, must not be found either.
+  it('finds nothing in a shaken still scene with a changing strip', () => {
+    const W = 256, H = 160;
+    const rng = makeRng(41);
+    const fields = [0, 1, 2].map(() => bumpField(rng, W + 20, H + 20, 600, 2, 6));
+    const shakes = [[0, 0], [2.4, -1.7], [-1.6, 2.2], [1.2, 1.9], [-2.1, -2.3]];
+    const frames = shakes.map(([dx, dy], k) => {
+      const f = makeRgb(W, H);
+      for (let y = 0; y < H; y++) for (let x = 0; x < W; x++) for (let c = 0; c < 3; c++) {
+        f.data[(y * W + x) * 3 + c] = Math.max(0, Math.min(255, Math.round(128 + 300 * (fields[c](x + 10 + dx, y + 10 + dy) - 0.5))));
+      }
+      paintStrip(f, { edge: 'bottom', share: 0.06, bar: 10, ink: 240 }, `1203${k}${k * 7}`);
+      return f;
+    });
+    const strip = detectDataStripInFrames(frames);
+    expect(strip.bottom).toBeGreaterThan(0);
+    const a = analyseEvent({ frames, mask: ignoreMask(W, H, strip) });
+    expect(a.frames.filter((f) => f.compensated).length).toBe(4);
+    for (const f of a.frames) expect(f.blobs.map((b) => `${b.x},${b.y} ${b.width}x${b.height}`)).toEqual([]);
+  });
+  it('validity after a shift: the frame edge and the moved mask are both excluded', () => {
+    const mask = new Uint8Array(10 * 6).fill(255);
+    for (let x = 0; x < 10; x++) mask[5 * 10 + x] = 0; // bottom row ignored
+    const v = translateValidity(10, 6, 0.5, 1.5, mask);
+    // out(x, y) reads rows y + 1.5 -> floor and ceil: y = 3 touches row 5, y = 4 is off the frame.
+    expect([0, 1, 2, 3, 4, 5].map((y) => v[y * 10 + 2])).toEqual([255, 255, 255, 0, 0, 0]);
+    // Column 9 reads x = 9.5: off the frame.
+    expect(v[0 * 10 + 9]).toBe(0);
+    expect(() => translateValidity(10, 6, 0, 0, new Uint8Array(5))).toThrowError(/mask.length/);
   });
 });
