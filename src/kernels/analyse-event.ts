@@ -22,7 +22,7 @@ import { temporalMedian } from './temporal-median.js';
 import { thresholdHysteresis } from './threshold.js';
 import { linkTracks, trackFeatures, type Track, type TrackFeatures } from './tracks.js';
 import { translateBilinear, translateValidity } from './translate.js';
-import { farnebackFlow } from './flow/farneback.js';
+import { farnebackFlowPrepared, flowPyramid } from './flow/farneback.js';
 import { blobFlow, trackFlow, type BlobFlow, type TrackFlow } from './flow/flow-features.js';
 
 export interface EventInput {
@@ -246,12 +246,13 @@ export function analyseEvent(input: EventInput): EventAnalysis {
   const feats = tracks.map((t) => trackFeatures(t, n, width, height, SNR_SCALE));
   let trackFlows: TrackFlow[] | undefined;
   if (input.flow && n >= 2) {
-    const lumas = work.map(toLuma);
+    // Each frame's pyramid is prepared once and serves both pairs it belongs to.
+    const pyramids = work.map((f) => flowPyramid(toLuma(f)));
     // Motion of frame k's pixels since frame k - 1, on frame k's grid (where its blobs are):
     // the flow from k back to k - 1, negated. Frame 0 takes its flow towards frame 1.
-    const flows = lumas.map((l, k) => {
-      if (k === 0) return farnebackFlow(l, lumas[1]);
-      const back = farnebackFlow(l, lumas[k - 1]);
+    const flows = pyramids.map((l, k) => {
+      if (k === 0) return farnebackFlowPrepared(l, pyramids[1]);
+      const back = farnebackFlowPrepared(l, pyramids[k - 1]);
       for (let i = 0; i < back.data.length; i++) back.data[i] = -back.data[i];
       return back;
     });

@@ -4,7 +4,7 @@
  * OpenCV's basketball sample), by warp error, and against analytic sub-pixel shifts.
  */
 import { beforeAll, describe, expect, it } from 'vitest';
-import { farnebackFlow, DEFAULT_FLOW } from '../../src/kernels/flow/farneback.js';
+import { farnebackFlow, farnebackFlowPrepared, flowPyramid, DEFAULT_FLOW } from '../../src/kernels/flow/farneback.js';
 import { blurThenResize, gaussianBlur, resizeBilinear } from '../../src/kernels/flow/resample.js';
 import { makeGrey, type FloatImage, type GreyFrame } from '../../src/kernels/frame.js';
 import { toLuma } from '../../src/kernels/luma.js';
@@ -105,6 +105,23 @@ describe('Farnebäck flow on analytic shifts', () => {
       n++;
     }
     expect(e / n).toBeLessThanOrEqual(0.1);
+  });
+  it('a frame prepared once serves every pair it belongs to: the same flow, bit for bit', () => {
+    const field = valueNoise(makeRng(9), 10, 4);
+    const w = 120, h = 90;
+    const frames = [0, 0.8, 1.9].map((dx) => {
+      const f = makeGrey(w, h);
+      for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) f.data[y * w + x] = Math.round(255 * field(x - dx, y + dx / 2));
+      return f;
+    });
+    const pyr = frames.map((f) => flowPyramid(f));
+    // The middle frame is "next" of the first pair, then "prev" of the second, then "next" again.
+    const pairs: Array<[number, number]> = [[0, 1], [1, 2], [2, 1], [1, 0]];
+    for (const [i, j] of pairs) {
+      expect(Buffer.from(farnebackFlowPrepared(pyr[i], pyr[j]).data.buffer).equals(Buffer.from(farnebackFlow(frames[i], frames[j]).data.buffer))).toBe(true);
+    }
+    expect(() => farnebackFlowPrepared(pyr[0], flowPyramid(makeGrey(w, h - 2)))).toThrowError(expect.objectContaining({ code: ErrorCode.sizeMismatch }));
+    expect(() => farnebackFlowPrepared(pyr[0], flowPyramid(frames[1], { ...DEFAULT_FLOW, iterations: 2 }))).toThrowError(/next.params/);
   });
   it('rejects an even window and mismatched frames with stable codes', () => {
     expect(() => farnebackFlow(makeGrey(64, 64), makeGrey(64, 64), { ...DEFAULT_FLOW, winSize: 14 })).toThrowError(/winSize: wanted odd integer/);

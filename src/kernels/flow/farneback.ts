@@ -10,7 +10,7 @@
  * reference the tests compare against, so that the two agree to a fraction of a pixel.
  * Output: float32, two channels (dx, dy) per pixel: prev(x, y) ~ next(x + dx, y + dy).
  */
-import { invalidArgument } from '../../shared/errors.js';
+import { invalidArgument, sizeMismatch } from '../../shared/errors.js';
 import { checkInteger, checkNumber } from '../../shared/validate.js';
 import { checkFrame, checkSameShape, type FloatImage, type GreyFrame } from '../frame.js';
 import { polyExpansion } from './poly-expansion.js';
@@ -132,10 +132,7 @@ function toFloat(f: GreyFrame): FloatImage {
   return { width: f.width, height: f.height, channels: 1, data: Float32Array.from(f.data) };
 }
 
-export function farnebackFlow(prev: GreyFrame, next: GreyFrame, p: FlowParams = DEFAULT_FLOW): FloatImage {
-  checkFrame('prev', prev, 1);
-  checkFrame('next', next, 1);
-  checkSameShape('prev', prev, 'next', next);
+function checkFlowParams(p: FlowParams): void {
   checkNumber('pyrScale', p.pyrScale, 0.1, 0.95);
   checkInteger('levels', p.levels, 0, 10);
   checkInteger('winSize', p.winSize, 3, 101);
@@ -143,30 +140,66 @@ export function farnebackFlow(prev: GreyFrame, next: GreyFrame, p: FlowParams = 
   checkInteger('iterations', p.iterations, 1, 50);
   checkInteger('polyN', p.polyN, 3, 9);
   checkNumber('polySigma', p.polySigma, 0.1, 5);
-  const W = prev.width, H = prev.height;
+}
+
+/**
+ * One frame's polynomial expansion at every pyramid level, coarsest first. A frame's expansion
+ * does not depend on the frame it is compared with, so a run of frames (a burst's consecutive
+ * pairs) prepares each frame once and passes it to farnebackFlowPrepared as either side.
+ */
+export interface FlowPyramid {
+  width: number;
+  height: number;
+  params: FlowParams;
+  levels: Array<{ w: number; h: number; R: Float32Array }>;
+}
+
+export function flowPyramid(frame: GreyFrame, p: FlowParams = DEFAULT_FLOW): FlowPyramid {
+  checkFrame('frame', frame, 1);
+  checkFlowParams(p);
+  const W = frame.width, H = frame.height;
   let levels = 0;
   for (let s = 1; levels < p.levels; levels++) {
     s *= p.pyrScale;
     if (W * s < 32 || H * s < 32) break;
   }
-  const f0 = toFloat(prev), f1 = toFloat(next);
-  let flow: FloatImage | undefined;
+  const f = toFloat(frame);
+  const out: FlowPyramid['levels'] = [];
   for (let k = levels; k >= 0; k--) {
     const scale = p.pyrScale ** k;
     const sigma = (1 / scale - 1) * 0.5;
     const smooth = Math.max(3, Math.round(sigma * 5) | 1);
     const w = Math.round(W * scale), h = Math.round(H * scale);
+    out.push({ w, h, R: polyExpansion(blurThenResize(f, smooth, sigma, w, h), p.polyN, p.polySigma).data });
+  }
+  return { width: W, height: H, params: p, levels: out };
+}
+
+/** Flow between two prepared frames (same size, same parameters). */
+export function farnebackFlowPrepared(prev: FlowPyramid, next: FlowPyramid): FloatImage {
+  if (prev.width !== next.width || prev.height !== next.height) throw sizeMismatch('next', `${prev.width}x${prev.height} like prev`, `${next.width}x${next.height}`);
+  if (prev.params !== next.params && JSON.stringify(prev.params) !== JSON.stringify(next.params)) throw invalidArgument('next.params', JSON.stringify(prev.params), JSON.stringify(next.params));
+  const p = prev.params;
+  let flow: FloatImage | undefined;
+  prev.levels.forEach(({ w, h, R: R0 }, i) => {
+    const R1 = next.levels[i].R;
     let cur: FloatImage;
     if (!flow) cur = { width: w, height: h, channels: 2, data: new Float32Array(w * h * 2) };
     else {
       cur = resizeBilinear(flow, w, h);
-      for (let i = 0; i < cur.data.length; i++) cur.data[i] /= p.pyrScale;
+      for (let j = 0; j < cur.data.length; j++) cur.data[j] /= p.pyrScale;
     }
-    const R = [f0, f1].map((f) => polyExpansion(blurThenResize(f, smooth, sigma, w, h), p.polyN, p.polySigma).data);
     const M = new Float32Array(w * h * 5);
-    updateMatrices(R[0], R[1], cur.data, M, w, h, 0, h);
-    for (let i = 0; i < p.iterations; i++) updateFlowBox(R[0], R[1], cur.data, M, w, h, p.winSize, i < p.iterations - 1);
+    updateMatrices(R0, R1, cur.data, M, w, h, 0, h);
+    for (let it = 0; it < p.iterations; it++) updateFlowBox(R0, R1, cur.data, M, w, h, p.winSize, it < p.iterations - 1);
     flow = cur;
-  }
+  });
   return flow!;
+}
+
+export function farnebackFlow(prev: GreyFrame, next: GreyFrame, p: FlowParams = DEFAULT_FLOW): FloatImage {
+  checkFrame('prev', prev, 1);
+  checkFrame('next', next, 1);
+  checkSameShape('prev', prev, 'next', next);
+  return farnebackFlowPrepared(flowPyramid(prev, p), flowPyramid(next, p));
 }
