@@ -15,13 +15,13 @@ import { openClose3x3 } from './morphology.js';
 import { checkParams, SNR_SCALE, type EngineParams } from './params.js';
 import { deploymentBackground, medianAbsLumaDiff, type NeighbourFit } from './deployment-background.js';
 import { edgeContrast } from './edge-contrast.js';
-import { estimateShift, shiftReference, type Shift } from './phase-correlate.js';
+import { estimateShift, shiftReference, worthCompensating, type Shift } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
 import { maxImage, minImage, orMask, toSnr } from './snr-image.js';
 import { temporalMedian } from './temporal-median.js';
 import { thresholdHysteresis } from './threshold.js';
 import { linkTracks, trackFeatures, type Track, type TrackFeatures } from './tracks.js';
-import { translateBilinear, translateValidity } from './translate.js';
+import { andValidity, translateBilinear, translateValidity } from './translate.js';
 import { farnebackFlowPrepared, flowPyramid } from './flow/farneback.js';
 import { blobFlow, trackFlow, type BlobFlow, type TrackFlow } from './flow/flow-features.js';
 
@@ -85,13 +85,6 @@ export interface EventAnalysis {
   deploymentBackground: boolean;
 }
 
-function andMask(a: Uint8Array | undefined, b: Uint8Array): Uint8Array {
-  if (!a) return b;
-  const out = new Uint8Array(b.length);
-  for (let i = 0; i < b.length; i++) out[i] = a[i] && b[i] ? 255 : 0;
-  return out;
-}
-
 export function analyseEvent(input: EventInput): EventAnalysis {
   const params = checkParams(input.params ?? {});
   const frames = input.frames;
@@ -118,8 +111,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
   const refSpectrum = shiftReference(refLuma);
   const align = (f: RgbFrame, luma: GreyFrame): { frame: RgbFrame; shift: Shift; compensated: boolean } => {
     const shift = estimateShift(refSpectrum, f);
-    const plausible = shift.confidence >= params.alignMinConfidence && Math.hypot(shift.dx, shift.dy) >= 0.3;
-    if (!plausible) return { frame: f, shift, compensated: false };
+    if (!worthCompensating(shift, params.alignMinConfidence)) return { frame: f, shift, compensated: false };
     const t = translateBilinear(f, shift.dx, shift.dy);
     // A large subject can pull the correlation peak to its own motion. Keep the shift only if
     // it makes the frames agree better where most pixels are: the median absolute difference.
@@ -127,7 +119,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
       return { frame: f, shift, compensated: false };
     }
     // The frame's ignored regions (its data strip) move with it; so does the uncovered edge.
-    valid = andMask(valid, translateValidity(width, height, shift.dx, shift.dy, ignore));
+    valid = andValidity(valid, translateValidity(width, height, shift.dx, shift.dy, ignore));
     return { frame: t.frame, shift, compensated: true };
   };
   for (let k = 0; k < n; k++) {
@@ -136,6 +128,9 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     work.push(k === ref ? a.frame : applyGainOffset(a.frame, go));
     results.push({ shift: a.shift, compensated: a.compensated, gain: go.gain, offset: go.offset, sigma: 0, blobs: [], activeFraction: 0 });
   }
+  // Luma of the aligned, normalised frames, made once for whichever step needs it first.
+  let lumas: GreyFrame[] | undefined;
+  const workLumas = (): GreyFrame[] => (lumas ??= work.map(toLuma));
   let background: RgbFrame | undefined;
   if (n >= 3) background = temporalMedian(work);
   let deployment: RgbFrame | undefined;
@@ -148,9 +143,9 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     // normalised (a single image has none; its best neighbour serves).
     let own: number | undefined;
     if (n >= 2) {
-      const lumas = work.map(toLuma);
+      const l = workLumas();
       const d: number[] = [];
-      for (let k = 1; k < n; k++) d.push(medianAbsLumaDiff(lumas[k], lumas[k - 1], valid));
+      for (let k = 1; k < n; k++) d.push(medianAbsLumaDiff(l[k], l[k - 1], valid));
       own = d.sort((x, y) => x - y)[d.length >> 1];
     }
     const db = deploymentBackground(work[ref], input.neighbours, {
@@ -163,7 +158,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     neighbourFits = db.fits;
     if (db.frame) {
       deployment = db.frame;
-      if (db.valid) valid = andMask(valid, db.valid);
+      if (db.valid) valid = andValidity(valid, db.valid);
     }
   }
   if (n === 1 && deployment) background = deployment;
@@ -247,7 +242,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
   let trackFlows: TrackFlow[] | undefined;
   if (input.flow && n >= 2) {
     // Each frame's pyramid is prepared once and serves both pairs it belongs to.
-    const pyramids = work.map((f) => flowPyramid(toLuma(f)));
+    const pyramids = workLumas().map((l) => flowPyramid(l));
     // Motion of frame k's pixels since frame k - 1, on frame k's grid (where its blobs are):
     // the flow from k back to k - 1, negated. Frame 0 takes its flow towards frame 1.
     const flows = pyramids.map((l, k) => {

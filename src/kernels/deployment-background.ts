@@ -19,10 +19,10 @@ import { invalidArgument } from '../shared/errors.js';
 import { checkInteger, checkNumber } from '../shared/validate.js';
 import { checkFrame, checkSameShape, type GreyFrame, type RgbFrame } from './frame.js';
 import { toLuma } from './luma.js';
-import { estimateShift, shiftReference, type Shift, type ShiftReference } from './phase-correlate.js';
+import { estimateShift, shiftReference, worthCompensating, type Shift, type ShiftReference } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
 import { temporalMedian } from './temporal-median.js';
-import { translateBilinear, translateValidity } from './translate.js';
+import { andValidity, translateBilinear, translateValidity } from './translate.js';
 
 export interface NeighbourFit {
   shift: Shift;
@@ -82,13 +82,6 @@ export function medianAbsLumaDiff(a: GreyFrame, b: GreyFrame, valid?: Uint8Array
   return 255;
 }
 
-function andValid(a: Uint8Array | undefined, b: Uint8Array): Uint8Array {
-  if (!a) return b;
-  const out = new Uint8Array(b.length);
-  for (let i = 0; i < b.length; i++) out[i] = a[i] && b[i] ? 255 : 0;
-  return out;
-}
-
 export function deploymentBackground(reference: RgbFrame, neighbours: readonly RgbFrame[], options: DeploymentOptions = {}): DeploymentBackground {
   checkFrame('reference', reference, 3);
   if (!Array.isArray(neighbours)) throw invalidArgument('neighbours', 'array of frames', neighbours);
@@ -115,11 +108,10 @@ export function deploymentBackground(reference: RgbFrame, neighbours: readonly R
     let valid: Uint8Array | undefined = mask;
     let compensated = false;
     let best = onReference(nb, mask);
-    const plausible = shift.confidence >= minConfidence && Math.hypot(shift.dx, shift.dy) >= 0.3;
-    if (plausible) {
+    if (worthCompensating(shift, minConfidence)) {
       const t = translateBilinear(nb, shift.dx, shift.dy);
       // The neighbour's own ignored regions (its data strip) move with it.
-      const tValid = andValid(mask, translateValidity(reference.width, reference.height, shift.dx, shift.dy, mask));
+      const tValid = andValidity(mask, translateValidity(reference.width, reference.height, shift.dx, shift.dy, mask));
       // A shift is kept only if it makes the frames agree better where most pixels are (after
       // the gain fit: a neighbour's exposure differs far more than a burst frame's): otherwise
       // it was pulled by something that moved, not by the camera.
@@ -139,6 +131,6 @@ export function deploymentBackground(reference: RgbFrame, neighbours: readonly R
   const fits = fitted.map((f) => f.fit);
   if (kept.length < minKept || kept.length === 0) return { fits };
   let valid: Uint8Array | undefined;
-  for (const f of kept) if (f.fit.compensated && f.valid) valid = andValid(valid, f.valid);
+  for (const f of kept) if (f.fit.compensated && f.valid) valid = andValidity(valid, f.valid);
   return { frame: temporalMedian(kept.map((f) => f.normalised)), valid, fits };
 }

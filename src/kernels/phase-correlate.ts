@@ -35,6 +35,15 @@ export interface Shift {
   confidence: number;
 }
 
+/** Below this a shift is not worth a resampling, which softens the frame a little. */
+const MIN_COMPENSATED_PX = 0.3;
+
+/** Whether a found shift is worth compensating: confident enough and at least 0.3 px long. The
+ *  caller still checks that it makes the frames agree better (a moving subject can pull it). */
+export function worthCompensating(shift: Shift, minConfidence: number): boolean {
+  return shift.confidence >= minConfidence && Math.hypot(shift.dx, shift.dy) >= MIN_COMPENSATED_PX;
+}
+
 // 128 px windows: enough texture for 0.1 px at analysis sizes, 4x cheaper than 256.
 const MAX_WINDOW = 128;
 const EPS_FACTOR = 1;

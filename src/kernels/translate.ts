@@ -43,6 +43,14 @@ export function translateBilinear<T extends Frame>(src: T, dx: number, dy: numbe
   return { frame: { ...src, data: out }, valid };
 }
 
+/** Intersection of two validity masks (255 = valid); `a` absent means everything valid. */
+export function andValidity(a: Uint8Array | undefined, b: Uint8Array): Uint8Array {
+  if (!a) return b;
+  const out = new Uint8Array(b.length);
+  for (let i = 0; i < b.length; i++) out[i] = a[i] && b[i] ? 255 : 0;
+  return out;
+}
+
 /**
  * Where a frame shifted by translateBilinear(src, dx, dy) still holds analysable data: 255 where
  * the source lies inside the frame and all four source pixels are analysable in `mask` (255 =
