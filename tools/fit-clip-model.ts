@@ -15,13 +15,12 @@ import path from 'node:path';
 import { activityWindows } from '../src/kernels/activity-windows.js';
 import { MOTION_MODEL } from '../src/kernels/model.js';
 import { expandFeatures, FEATURE_NAMES, trackScore, type MotionModel } from '../src/kernels/score.js';
-import { fitLogistic } from './logistic.js';
+import { fitLogistic, PENALTIES } from './logistic.js';
 import { inParts } from './parts.js';
 import { CLIP_FIT_SEEDS, clipPlan } from './scenes/clip-plans.js';
 import { runClipPlan, type ClipRecord } from './scenes/clip-run.js';
 
 const ROOT = path.resolve(import.meta.dirname, '..');
-const LAMBDA = 3; // the burst model's penalty (tools/fit-weights.ts), for the same 77 terms
 const COVER = 0.99;
 const ROLL = { preRollS: 1, postRollS: 2, mergeGapS: 3 };
 const seeds = Array.from({ length: CLIP_FIT_SEEDS.count }, (_, i) => CLIP_FIT_SEEDS.first + i);
@@ -40,22 +39,15 @@ for (const c of clips) for (const f of c.frames) for (const r of f.rows) r.forEa
 const range = { lo, hi };
 const clip = (r: number[]) => r.map((v, j) => Math.min(hi[j], Math.max(lo[j], v)));
 
-function fit(subset: ClipRecord[]): MotionModel {
+function fit(subset: ClipRecord[], lambda: number): MotionModel {
   const rows: number[][] = [];
   const labels: number[] = [];
   for (const c of subset) for (const f of c.frames) f.rows.forEach((r, i) => (rows.push(expandFeatures(clip(r))), labels.push(f.labels[i])));
   const pos = labels.filter((l) => l === 1).length;
   const w = labels.map((l) => (l === 1 ? labels.length / (2 * pos) : labels.length / (2 * (labels.length - pos))));
-  return { schema: 'movesift.motion-model/1', features: FEATURE_NAMES, ...fitLogistic(rows, labels, w, LAMBDA), thresholds: { blank: 0, motion: 1 }, range };
+  return { schema: 'movesift.motion-model/1', features: FEATURE_NAMES, ...fitLogistic(rows, labels, w, lambda), thresholds: { blank: 0, motion: 1 }, range };
 }
 const frameScores = (m: MotionModel, c: ClipRecord) => c.frames.map((f) => f.rows.reduce((s, r) => Math.max(s, trackScore(m, r)), 0));
-
-const full = fit(clips);
-const oof = new Map<number, number[]>();
-for (const fold of [0, 1]) {
-  const m = fit(clips.filter((c) => c.seed % 2 !== fold));
-  for (const c of clips) if (c.seed % 2 === fold) oof.set(c.seed, frameScores(m, c));
-}
 
 function judge(k: number, threshold: number, scores: (c: ClipRecord) => number[]) {
   let present = 0, covered = 0, absent = 0, kept = 0;
@@ -73,13 +65,30 @@ function judge(k: number, threshold: number, scores: (c: ClipRecord) => number[]
 
 // Log-spaced from 0.001 to 0.99: the useful thresholds of a logistic score crowd near both ends.
 const grid = Array.from({ length: 61 }, (_, i) => +(10 ** (-3 + (3 * i) / 60) * 0.99).toPrecision(3));
-let best = { k: 1, threshold: 0.01, coverage: 0, waterKept: 1 };
-for (const k of [1, 3, 5, 7]) {
-  for (const threshold of grid) {
-    const r = judge(k, threshold, (c) => oof.get(c.seed)!);
-    if (r.coverage >= COVER && r.waterKept < best.waterKept) best = { k, threshold, ...r };
+/** Out-of-fold frame scores at one penalty and the best window setting they allow. */
+function candidate(lambda: number) {
+  const oof = new Map<number, number[]>();
+  for (const fold of [0, 1]) {
+    const m = fit(clips.filter((c) => c.seed % 2 !== fold), lambda);
+    for (const c of clips) if (c.seed % 2 === fold) oof.set(c.seed, frameScores(m, c));
   }
+  let best = { k: 1, threshold: 0.01, coverage: 0, waterKept: 1 };
+  for (const k of [1, 3, 5, 7]) {
+    for (const threshold of grid) {
+      const r = judge(k, threshold, (c) => oof.get(c.seed)!);
+      if (r.coverage >= COVER && r.waterKept < best.waterKept) best = { k, threshold, ...r };
+    }
+  }
+  console.log(`lambda ${lambda}: out of fold ${best.waterKept.toFixed(4)} of subject-free frames kept at coverage ${best.coverage.toFixed(4)}`);
+  return { lambda, oof, best };
 }
+// The penalty is chosen like the burst model's (tools/fit-weights.ts): the candidate whose
+// out-of-fold windows keep the least water wins, ties to the stronger penalty.
+const candidates = PENALTIES.map(candidate);
+const chosen = candidates.reduce((b, c) => (c.best.waterKept <= b.best.waterKept ? c : b));
+const LAMBDA = chosen.lambda;
+const { oof, best } = chosen;
+const full = fit(clips, LAMBDA);
 // Motion: the lowest frame score above which at least 95% of fit frames show the subject.
 const pairs = clips.flatMap((c) => frameScores(full, c).map((s, i) => ({ s, p: c.frames[i].present }))).sort((a, b) => b.s - a.s);
 let motion = 1;
@@ -103,6 +112,7 @@ const model = {
     framesWithSubject: clips.reduce((a, c) => a + c.frames.filter((f) => f.present).length, 0),
     tracks: clips.reduce((a, c) => a + c.frames.reduce((q, f) => q + f.rows.length, 0), 0),
     lambda: LAMBDA,
+    lambdaChoice: candidates.map((c) => ({ lambda: c.lambda, waterKeptOutOfFold: +c.best.waterKept.toFixed(4), coverageOutOfFold: +c.best.coverage.toFixed(4) })),
     coverageTarget: COVER,
     outOfFold: { coverage: +best.coverage.toFixed(4), waterKept: +best.waterKept.toFixed(4) },
     inSample: { coverage: +inSample.coverage.toFixed(4), waterKept: +inSample.waterKept.toFixed(4) },

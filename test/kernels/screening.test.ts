@@ -9,20 +9,22 @@
  * product never has (0.84 claimed, 0.785 as a scan computed it), then none (0.48).
  *
  * The engine's promise, asserted: animal recall (events not likely-blank) at least 0.99 in each
- * habitat and over both. The issue's bar for the blank share, 80% of false triggers called
- * likely-blank, is NOT met: measured with models/motion-weights.json (thresholds from
- * out-of-fold records, 99% recall with 95% confidence): recall 84/84, likely-blank
- * 109/144 = 0.757 (land 76/96 = 0.79, water 33/48 = 0.69); out of fold on the fit set 0.71.
- * The assertion below is a floor under today's level, so that a change that loses ground
- * fails; it is not the bar. What is left is mostly rain and particles, kelp and surge under
- * water: many small things moving at once.
+ * habitat and over both. The issue's bar for the blank share is 80% of false triggers called
+ * likely-blank. Measured with models/motion-weights.json (2026-12-03: L2 penalty 10, chosen
+ * by the fit; thresholds from out-of-fold records, 99% recall with 95% confidence): recall
+ * 84/84, likely-blank 116/144 = 0.806 (land 83/96 = 0.86, water 33/48 = 0.69). That clears the
+ * bar on these seeds by one event, but not on more of them: on the next 24 validation seeds per
+ * category (`npm run validate:wide`) 211/288 = 0.733 (land 0.82, water 0.55), and out of fold
+ * on the fit set 0.74. So the bar is not met in general, and the assertion below is a floor
+ * under today's level, so that a change that loses ground fails; it is not the bar. What is
+ * left is mostly particles, surge, kelp and rain: many small things moving at once.
  */
 import { describe, expect, it } from 'vitest';
 import { ANIMAL_CATEGORIES, LAND_FALSE, WATER_FALSE, isUnderwater } from '../../tools/scenes/categories.js';
 import { screenCategories, summarise } from '../helpers/screening.js';
 
-// Today's level (0.757) less a margin of about five events in 144, so that refits do not flap.
-const BLANK_SHARE_FLOOR = 0.72;
+// Today's level (0.806) less a margin of about six events in 144, so that refits do not flap.
+const BLANK_SHARE_FLOOR = 0.76;
 
 describe('screening the validation seeds as a scan does', () => {
   it('keeps 99% of animals in each habitat and holds the likely-blank share above its floor', () => {
