@@ -46,7 +46,7 @@ async function fitRecords(): Promise<SceneRecord[]> {
   const cache = path.resolve(import.meta.dirname, '../.cache/fit-records.json');
   const commit = (() => {
     try {
-      return execFileSync('git', ['describe', '--always', '--dirty'], { cwd: path.dirname(cache), encoding: 'utf8' }).trim();
+      return execFileSync('git', ['describe', '--always', '--dirty'], { cwd: path.resolve(import.meta.dirname, '..'), encoding: 'utf8', stdio: ['ignore', 'pipe', 'ignore'] }).trim();
     } catch {
       return 'unknown';
     }
