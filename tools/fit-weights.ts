@@ -39,8 +39,9 @@ const started = Date.now();
 const requests = sceneRequests(FIT_SEEDS.first, FIT_SEEDS.perCategory, ALL_CATEGORIES);
 /**
  * The scene records, analysed afresh in one process per core; `--reuse-records` loads the ones
- * the last run left in .cache/ (the fit then takes minutes, not twenty), only right while the
- * kernels, features and generator are those that made them: the cache names its commit.
+ * the last run left in .cache/ (the fit then skips the scene analysis, about half its time),
+ * only right while the kernels, features and generator are those that made them: the cache
+ * names its commit.
  */
 async function fitRecords(): Promise<SceneRecord[]> {
   const cache = path.resolve(import.meta.dirname, '../.cache/fit-records.json');

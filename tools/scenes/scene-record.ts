@@ -4,19 +4,10 @@
  * reference to compare against. Lets the scene work run in several processes.
  */
 import { scoreEventRows, type MotionModel } from '../../src/kernels/score.js';
-import type { CategoryName } from './categories.js';
 import { analyseScene, type LabelledEvent } from './evaluate.js';
 import { renderScene, type SceneRequest } from './render.js';
 
-export interface SceneRecord {
-  seed: number;
-  category: CategoryName;
-  animal: boolean;
-  frames: number;
-  rows: number[][];
-  labels: number[];
-  noReference: boolean;
-}
+export type SceneRecord = Omit<LabelledEvent, 'analysis'> & { noReference: boolean };
 
 function toRecord(e: LabelledEvent): SceneRecord {
   return { seed: e.seed, category: e.category, animal: e.animal, frames: e.frames, rows: e.rows, labels: e.labels, noReference: e.analysis.context.noReference };
