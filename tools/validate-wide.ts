@@ -9,20 +9,16 @@
 import { MOTION_MODEL } from '../src/kernels/model.js';
 import { scoreEvent, Verdict } from '../src/kernels/score.js';
 import { ALL_CATEGORIES, isAnimal, isUnderwater, type CategoryName } from './scenes/categories.js';
-import { analyseScene } from './scenes/evaluate.js';
+import { analyseScene, sceneRequests } from './scenes/evaluate.js';
 import { renderScene } from './scenes/render.js';
 import { inParts } from './parts.js';
 import { VALIDATION_SEEDS } from './scenes/seeds.js';
 
 const FROM = VALIDATION_SEEDS.perCategory;
 const COUNT = 24;
-const requests = ALL_CATEGORIES.flatMap((category, ci) =>
-  Array.from({ length: COUNT }, (_, j) => {
-    const i = FROM + j;
-    // Bursts and, one in four, single images, as sceneRequests draws them.
-    return { seed: VALIDATION_SEEDS.first + ci * 1000 + i, category, frames: i % 4 === 3 ? 1 : undefined };
-  }),
-);
+// The same draw as sceneRequests (bursts, and one in four single images), past the test's seeds.
+const requests = sceneRequests(VALIDATION_SEEDS.first, FROM + COUNT, ALL_CATEGORIES).filter((r) => r.seed % 1000 >= FROM);
+
 interface Outcome {
   category: CategoryName;
   animal: boolean;

@@ -13,17 +13,14 @@ export function translateBilinear<T extends Frame>(src: T, dx: number, dy: numbe
   checkNumber('dy', dy, -src.height, src.height);
   const { width: w, height: h, channels: ch } = src;
   const out = new Uint8Array(src.data.length);
-  const valid = makeGrey(w, h);
   const s = src.data;
   for (let y = 0; y < h; y++) {
     const sy = y + dy;
-    const inY = sy >= 0 && sy <= h - 1;
     const y0 = Math.min(h - 1, Math.max(0, Math.floor(sy)));
     const y1 = Math.min(h - 1, y0 + 1);
     const fy = Math.min(1, Math.max(0, sy - y0));
     for (let x = 0; x < w; x++) {
       const sx = x + dx;
-      const inX = sx >= 0 && sx <= w - 1;
       const x0 = Math.min(w - 1, Math.max(0, Math.floor(sx)));
       const x1 = Math.min(w - 1, x0 + 1);
       const fx = Math.min(1, Math.max(0, sx - x0));
@@ -37,10 +34,9 @@ export function translateBilinear<T extends Frame>(src: T, dx: number, dy: numbe
         const bot = s[c + k] + fx * (s[d + k] - s[c + k]);
         out[o + k] = Math.round(top + fy * (bot - top));
       }
-      valid.data[y * w + x] = inX && inY ? 255 : 0;
     }
   }
-  return { frame: { ...src, data: out }, valid };
+  return { frame: { ...src, data: out }, valid: makeGrey(w, h, translateValidity(w, h, dx, dy)) };
 }
 
 /** Intersection of two validity masks (255 = valid); `a` absent means everything valid. */

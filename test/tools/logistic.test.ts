@@ -1,20 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { fitLogistic } from '../../tools/logistic.js';
-
-/** A seeded uniform generator (mulberry32) so every run draws the same rows. */
-function rng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { mulberry32 } from '../../src/shared/stats/seeded-random.js';
 
 function sample(n: number, truth: number[], bias: number, seed: number) {
-  const r = rng(seed);
+  const r = mulberry32(seed);
   const rows: number[][] = [];
   const labels: number[] = [];
   for (let i = 0; i < n; i++) {
