@@ -1,7 +1,8 @@
 /**
  * Splits a fitting script's scene work across processes (this machine has two cores and the
- * engine is single-threaded JavaScript): the script runs itself once per part with
- * `--part i/n <file>`, each child writes its share as JSON, the parent merges them in order.
+ * engine is single-threaded JavaScript): the script runs itself once per part with its own
+ * arguments and `--part i/n <file>`, each child writes its share as JSON, the parent merges
+ * them in order.
  */
 import { spawn } from 'node:child_process';
 import fs from 'node:fs';
@@ -23,7 +24,8 @@ export async function inParts<T>(script: string, work: (part: number, parts: num
     await Promise.all(
       Array.from({ length: parts }, (_, i) =>
         new Promise<void>((res, rej) => {
-          const c = spawn(process.execPath, [TSX, script, '--part', `${i}/${parts}`, path.join(dir, `${i}.json`)], { stdio: 'inherit', env: process.env });
+          // The parent's own arguments too, so that a child draws up the same work list.
+          const c = spawn(process.execPath, [TSX, script, ...process.argv.slice(2), '--part', `${i}/${parts}`, path.join(dir, `${i}.json`)], { stdio: 'inherit', env: process.env });
           c.on('exit', (code) => (code === 0 ? res() : rej(new Error(`part ${i} of ${script} exited ${code}`))));
         }),
       ),

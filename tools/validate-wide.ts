@@ -1,26 +1,32 @@
 /**
  * A wider held-out check of the burst model than the test suite can afford: the validation
  * seeds' next 24 per category (12-35; the screening test uses 0-11, the fit never sees either),
- * analysed as a scan analyses them, in one process per core (under 3 minutes here). Prints the
+ * analysed as a scan analyses them, in one process per core (about 4 minutes here). Prints the
  * verdicts per category and the two numbers the engine is judged by: animal recall and the
- * share of false triggers called likely-blank, on land and under water.
+ * share of false triggers called likely-blank, on land and under water. Then the animals seen
+ * in the middle of a full-strength false trigger (tools/scenes/evaluate.ts, mixedRequests),
+ * with their recall per trigger.
  * Run: npm run validate:wide
  */
 import { MOTION_MODEL } from '../src/kernels/model.js';
 import { scoreEvent, Verdict } from '../src/kernels/score.js';
 import { ALL_CATEGORIES, isAnimal, isUnderwater, type CategoryName } from './scenes/categories.js';
-import { analyseScene, sceneRequests } from './scenes/evaluate.js';
+import { analyseScene, mixedRequests, sceneRequests } from './scenes/evaluate.js';
 import { renderScene } from './scenes/render.js';
 import { inParts } from './parts.js';
-import { VALIDATION_SEEDS } from './scenes/seeds.js';
+import { MIXED_VALIDATION_SEEDS, VALIDATION_SEEDS } from './scenes/seeds.js';
 
 const FROM = VALIDATION_SEEDS.perCategory;
 const COUNT = 24;
 // The same draw as sceneRequests (bursts, and one in four single images), past the test's seeds.
-const requests = sceneRequests(VALIDATION_SEEDS.first, FROM + COUNT, ALL_CATEGORIES).filter((r) => r.seed % 1000 >= FROM);
+const requests: Array<{ seed: number; category: CategoryName; distractor?: CategoryName; frames?: number }> = [
+  ...sceneRequests(VALIDATION_SEEDS.first, FROM + COUNT, ALL_CATEGORIES).filter((r) => r.seed % 1000 >= FROM),
+  ...mixedRequests(MIXED_VALIDATION_SEEDS.first, MIXED_VALIDATION_SEEDS.perPair),
+];
 
 interface Outcome {
   category: CategoryName;
+  distractor?: CategoryName;
   animal: boolean;
   verdict: string;
 }
@@ -29,11 +35,13 @@ const outcomes = await inParts<Outcome>(import.meta.filename, async (part, parts
     .filter((_, k) => k % parts === part)
     .map((r) => {
       const ev = analyseScene(renderScene(r));
-      return { category: r.category, animal: ev.animal, verdict: scoreEvent(MOTION_MODEL, ev.analysis).verdict };
+      return { category: r.category, distractor: r.distractor, animal: ev.animal, verdict: scoreEvent(MOTION_MODEL, ev.analysis).verdict };
     }),
 );
 // A generated animal that never became visible (off the edge) is not an animal event.
-const counted = outcomes.filter((o) => !isAnimal(o.category) || o.animal);
+const visible = outcomes.filter((o) => !isAnimal(o.category) || o.animal);
+const counted = visible.filter((o) => !o.distractor);
+const mixed = visible.filter((o) => o.distractor);
 console.table(
   ALL_CATEGORIES.map((c) => {
     const xs = counted.filter((o) => o.category === c);
@@ -47,3 +55,10 @@ const blank = (o: Outcome) => o.verdict === Verdict.likelyBlank;
 console.log(`seeds ${FROM}-${FROM + COUNT - 1} of each category, model thresholds blank ${MOTION_MODEL.thresholds.blank.toFixed(4)}`);
 console.log(`animal recall ${share(animals, (o) => !blank(o))}`);
 console.log(`false triggers likely-blank ${share(empties, blank)}: land ${share(empties.filter((o) => !isUnderwater(o.category)), blank)}, water ${share(empties.filter((o) => isUnderwater(o.category)), blank)}`);
+console.table(
+  [...new Set(mixed.map((o) => o.distractor!))].map((d) => {
+    const xs = mixed.filter((o) => o.distractor === d);
+    return { 'animals with': d, events: xs.length, ...Object.fromEntries(Object.values(Verdict).map((v) => [v, xs.filter((o) => o.verdict === v).length])) };
+  }),
+);
+console.log(`animals in a full-strength false trigger (mixed seeds from ${MIXED_VALIDATION_SEEDS.first}, ${MIXED_VALIDATION_SEEDS.perPair} per animal and trigger): recall ${share(mixed, (o) => !blank(o))}`);

@@ -17,6 +17,7 @@ import { deploymentBackground, medianAbsLumaDiff, type NeighbourFit } from './de
 import { edgeContrast } from './edge-contrast.js';
 import { estimateShift, shiftReference, worthCompensating, type Shift } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
+import { applyShading, fitShading, shadingMatters } from './shading.js';
 import { maxImage, minImage, orMask, toSnr } from './snr-image.js';
 import { temporalMedian } from './temporal-median.js';
 import { thresholdHysteresis } from './threshold.js';
@@ -85,6 +86,20 @@ export interface EventAnalysis {
   deploymentBackground: boolean;
 }
 
+/**
+ * `frame` relit by the local shading that maps it onto `reference` (a cloud shadow or dappled
+ * light moving over the ground, a lamp lighting near and far unevenly: src/kernels/shading.ts),
+ * kept only when it makes the two agree better where most pixels are (median absolute luma
+ * difference down by a tenth), so that a scene without such light is left exactly as it was.
+ */
+function relight(referenceLuma: GreyFrame, frame: RgbFrame, valid?: Uint8Array): RgbFrame {
+  const luma = toLuma(frame);
+  const field = fitShading(referenceLuma, luma, valid);
+  if (!shadingMatters(field)) return frame;
+  const lit = applyShading(frame, field);
+  return medianAbsLumaDiff(referenceLuma, toLuma(lit), valid) < 0.9 * medianAbsLumaDiff(referenceLuma, luma, valid) ? lit : frame;
+}
+
 export function analyseEvent(input: EventInput): EventAnalysis {
   const params = checkParams(input.params ?? {});
   const frames = input.frames;
@@ -124,8 +139,9 @@ export function analyseEvent(input: EventInput): EventAnalysis {
   };
   for (let k = 0; k < n; k++) {
     const a = k === ref ? { frame: frames[k], shift: { dx: 0, dy: 0, confidence: 1 }, compensated: false } : align(frames[k], refLuma);
-    const go = k === ref ? { gain: [1, 1, 1], offset: [0, 0, 0] } : fitGainOffset(frames[ref], a.frame, valid);
-    work.push(k === ref ? a.frame : applyGainOffset(a.frame, go));
+    const lit = k === ref ? a.frame : relight(refLuma, a.frame, valid);
+    const go = k === ref ? { gain: [1, 1, 1], offset: [0, 0, 0] } : fitGainOffset(frames[ref], lit, valid);
+    work.push(k === ref ? a.frame : applyGainOffset(lit, go));
     results.push({ shift: a.shift, compensated: a.compensated, gain: go.gain, offset: go.offset, sigma: 0, blobs: [], activeFraction: 0 });
   }
   // Luma of the aligned, normalised frames, made once for whichever step needs it first.
@@ -137,7 +153,8 @@ export function analyseEvent(input: EventInput): EventAnalysis {
   let neighbourFits: NeighbourFit[] | undefined;
   if (input.background) {
     const a = align(input.background, refLuma);
-    deployment = applyGainOffset(a.frame, fitGainOffset(work[ref], a.frame, valid));
+    const lit = relight(refLuma, a.frame, valid);
+    deployment = applyGainOffset(lit, fitGainOffset(work[ref], lit, valid));
   } else if (input.neighbours?.length) {
     // The yardstick: how much consecutive frames of this trigger disagree once aligned and
     // normalised (a single image has none; its best neighbour serves).
@@ -157,7 +174,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     });
     neighbourFits = db.fits;
     if (db.frame) {
-      deployment = db.frame;
+      deployment = relight(refLuma, db.frame, valid);
       if (db.valid) valid = andValidity(valid, db.valid);
     }
   }

@@ -5,8 +5,8 @@
 import { MOTION_MODEL } from '../../src/kernels/model.js';
 import { scoreEvent, Verdict } from '../../src/kernels/score.js';
 import { isAnimal, type CategoryName } from '../../tools/scenes/categories.js';
-import { runScenes, sceneRequests } from '../../tools/scenes/evaluate.js';
-import { VALIDATION_SEEDS } from '../../tools/scenes/seeds.js';
+import { mixedRequests, runScenes, sceneRequests } from '../../tools/scenes/evaluate.js';
+import { MIXED_VALIDATION_SEEDS, VALIDATION_SEEDS } from '../../tools/scenes/seeds.js';
 
 export interface Tally {
   category: CategoryName;
@@ -33,7 +33,7 @@ export function screenCategories(categories: readonly CategoryName[]): Tally[] {
   return table;
 }
 
-export const notBlank = (t: Tally): number => t.events - t[Verdict.likelyBlank];
+export const notBlank = (t: Pick<Tally, 'events' | 'likely-blank'>): number => t.events - t[Verdict.likelyBlank];
 
 /** Animal recall (events not likely-blank) and the share of false triggers called likely-blank. */
 export function summarise(table: Tally[]): { recall: number; blankShare: number } {
@@ -45,4 +45,31 @@ export function summarise(table: Tally[]): { recall: number; blankShare: number 
   const blank = falses.reduce((s, t) => s + t['likely-blank'], 0);
   console.log(`animal recall ${kept}/${nA} = ${(kept / nA).toFixed(3)}; false triggers likely-blank ${blank}/${nF} = ${(blank / nF).toFixed(3)}`);
   return { recall: kept / nA, blankShare: blank / nF };
+}
+
+export interface MixedTally {
+  'animals with': CategoryName;
+  events: number;
+  'likely-blank': number;
+  unsure: number;
+  motion: number;
+}
+
+/**
+ * Animals in the middle of a full-strength false trigger (mixedRequests): the first `perPair`
+ * validation seeds of every animal and trigger, verdicts per trigger, printed as a table.
+ */
+export function screenMixed(perPair: number): MixedTally[] {
+  const events = runScenes(mixedRequests(MIXED_VALIDATION_SEEDS.first, MIXED_VALIDATION_SEEDS.perPair).filter((r) => r.seed % 100 < perPair));
+  const rows = new Map<CategoryName, MixedTally>();
+  for (const e of events) {
+    if (!e.animal || !e.distractor) continue;
+    const t = rows.get(e.distractor) ?? { 'animals with': e.distractor, events: 0, 'likely-blank': 0, unsure: 0, motion: 0 };
+    t.events++;
+    t[scoreEvent(MOTION_MODEL, e.analysis).verdict]++;
+    rows.set(e.distractor, t);
+  }
+  const table = [...rows.values()];
+  console.table(table);
+  return table;
 }

@@ -6,12 +6,14 @@
 import { analyseEvent, type EventAnalysis } from '../../src/kernels/analyse-event.js';
 import { detectDataStripInFrames, ignoreMask } from '../../src/kernels/data-strip.js';
 import { eventFeatureRows, scoreEvent, type MotionModel, type EventScore } from '../../src/kernels/score.js';
-import type { CategoryName } from './categories.js';
-import { renderScene, type Scene } from './render.js';
+import { ANIMAL_CATEGORIES, Category, LAND_FALSE, WATER_FALSE, type CategoryName } from './categories.js';
+import { renderScene, type Scene, type SceneRequest } from './render.js';
 
 export interface LabelledEvent {
   seed: number;
   category: CategoryName;
+  /** The false trigger an animal scene also carries (see mixedRequests). */
+  distractor?: CategoryName;
   animal: boolean;
   frames: number;
   rows: number[][];
@@ -41,7 +43,7 @@ export function analyseScene(scene: Scene): LabelledEvent {
       ? 1
       : 0,
   );
-  return { seed: scene.seed, category: scene.category, animal: scene.animal, frames: scene.frames.length, rows, labels, analysis };
+  return { seed: scene.seed, category: scene.category, ...(scene.distractor ? { distractor: scene.distractor } : {}), animal: scene.animal, frames: scene.frames.length, rows, labels, analysis };
 }
 
 /** Scene list for a seed range: every category, bursts and (one in four) single triggers. */
@@ -56,10 +58,36 @@ export function sceneRequests(firstSeed: number, perCategory: number, categories
   return out;
 }
 
+/**
+ * Animals in the middle of a false trigger: every animal category with every false trigger of
+ * its light at full strength (a fox in the rain or wind, under a drifting cloud, behind an
+ * insect on the lens, on a shaking camera; a fish in surge, swaying kelp, particles or
+ * caustics; the lamp change only at night, a cloud shadow only by day). The plain categories
+ * give an animal only the mild background of every scene; these are what a deployment also
+ * brings, and where a screener that learned "busy scene, no animal" would lose animals.
+ * `perPair` seeds per animal and trigger (seed = first + 100 * pair + i); one image in four is
+ * a single trigger, as in sceneRequests.
+ */
+export function mixedRequests(firstSeed: number, perPair: number): Array<{ seed: number; category: CategoryName; distractor: CategoryName; frames?: number }> {
+  const out: Array<{ seed: number; category: CategoryName; distractor: CategoryName; frames?: number }> = [];
+  let pair = 0;
+  for (const category of ANIMAL_CATEGORIES) {
+    const water = category === Category.fishCrossing || category === Category.fishHovering;
+    // The lamp changes only at night, a cloud shadow only by day.
+    const night = category === Category.animalNight;
+    const triggers = water ? WATER_FALSE : LAND_FALSE.filter((d) => d !== Category.empty && (d !== Category.irLamp || night) && (d !== Category.cloudShadow || !night));
+    for (const distractor of triggers) {
+      for (let i = 0; i < perPair; i++) out.push({ seed: firstSeed + pair * 100 + i, category, distractor, frames: i % 4 === 3 ? 1 : undefined });
+      pair++;
+    }
+  }
+  return out;
+}
+
 export function evaluate(model: MotionModel, ev: LabelledEvent): EventScore {
   return scoreEvent(model, ev.analysis);
 }
 
-export function runScenes(reqs: ReturnType<typeof sceneRequests>): LabelledEvent[] {
+export function runScenes(reqs: readonly SceneRequest[]): LabelledEvent[] {
   return reqs.map((r) => analyseScene(renderScene(r)));
 }

@@ -14,6 +14,8 @@ import { makeWorld, sampleWorld, type Light, type World } from './world.js';
 export interface Scene {
   seed: number;
   category: CategoryName;
+  /** The false trigger an animal scene also carries, if any. */
+  distractor?: CategoryName;
   light: Light;
   animal: boolean;
   width: number;
@@ -42,7 +44,7 @@ interface Effects {
   noise: number;
 }
 
-function plan(rng: Rng, category: CategoryName, light: Light): Effects {
+function plan(rng: Rng, category: CategoryName, light: Light, distractor?: CategoryName): Effects {
   const e: Effects = {
     swayAmp: rng.range(0, 1.2),
     swayRate: rng.range(1.5, 5),
@@ -58,6 +60,15 @@ function plan(rng: Rng, category: CategoryName, light: Light): Effects {
     particles: light === 'water' ? rng.int(0, 30) : 0,
     noise: light === 'ir' ? rng.range(2.5, 7) : light === 'water' ? rng.range(1.5, 4) : rng.range(1, 3.5),
   };
+  applyEffect(rng, e, category);
+  // An animal in the middle of a false trigger (a fox in the rain, a fish in the surge): the
+  // subject comes with the full strength of that trigger, not only the mild background of every scene.
+  if (distractor) applyEffect(rng, e, distractor);
+  return e;
+}
+
+/** Sets the effect that makes a scene of `category` what it is (no change for subjects and empties). */
+function applyEffect(rng: Rng, e: Effects, category: CategoryName): void {
   switch (category) {
     case Category.wind:
       e.swayAmp = rng.range(2, 7);
@@ -99,7 +110,6 @@ function plan(rng: Rng, category: CategoryName, light: Light): Effects {
     default:
       break;
   }
-  return e;
 }
 
 interface Streak {
@@ -123,9 +133,9 @@ export interface Renderer {
   duration: number;
 }
 
-export function makeRenderer(rng: Rng, category: CategoryName, light: Light, width: number, height: number, duration: number, worldRng: Rng = rng): Renderer {
+export function makeRenderer(rng: Rng, category: CategoryName, light: Light, width: number, height: number, duration: number, worldRng: Rng = rng, distractor?: CategoryName): Renderer {
   const world = makeWorld(worldRng, width, height, light);
-  const effects = plan(rng, category, light);
+  const effects = plan(rng, category, light, distractor);
   let subject: Subject | undefined;
   if (isAnimal(category)) {
     const fish = category === Category.fishCrossing || category === Category.fishHovering;
@@ -306,6 +316,9 @@ export interface SceneRequest {
   world?: number;
   /** Light of a land scene (day or infrared night); underwater categories are always 'water'. */
   light?: Light;
+  /** A false-trigger category whose effect an animal scene also carries at full strength
+   *  (same light as the animal: a land trigger for land animals, a water one for fish). */
+  distractor?: CategoryName;
 }
 
 export function renderScene(req: SceneRequest): Scene {
@@ -316,7 +329,9 @@ export function renderScene(req: SceneRequest): Scene {
       ? req.light
       : req.category === Category.animalNight || req.category === Category.irLamp
       ? 'ir'
-      : rng.chance(0.3)
+      : // A cloud shadow needs the sun: at night the camera's own lamp is the light (the draw
+        // is made either way, so that the other scenes of a seed stay as they were).
+        rng.chance(0.3) && req.category !== Category.cloudShadow && req.distractor !== Category.cloudShadow
         ? 'ir'
         : 'day';
   const width = req.width ?? rng.pick([192, 256, 320, 384, 480]);
@@ -324,7 +339,7 @@ export function renderScene(req: SceneRequest): Scene {
   const n = req.frames ?? rng.int(3, 10);
   const interval = rng.range(0.3, 1.2);
   const duration = (n - 1) * interval;
-  const r = makeRenderer(rng, req.category, light, width, height, Math.max(duration, 1), req.world !== undefined ? makeRng(req.world * 7919 + 23) : rng);
+  const r = makeRenderer(rng, req.category, light, width, height, Math.max(duration, 1), req.world !== undefined ? makeRng(req.world * 7919 + 23) : rng, req.distractor);
   const t0 = (req.event ?? 0) * 53.7;
   const times = Array.from({ length: n }, (_, i) => t0 + i * interval);
   const frames: RgbFrame[] = [];
@@ -345,6 +360,6 @@ export function renderScene(req: SceneRequest): Scene {
   // the least) in some frame. A sliver of a tail at the edge is not a visible animal.
   const visible = Math.max(16, 0.0005 * width * height);
   const animal = isAnimal(req.category) && subjectMasks.some((m) => m.reduce((a, v) => a + v, 0) >= visible);
-  return { seed: req.seed, category: req.category, light, animal, width, height, times, frames, subjectMasks, neighbours };
+  return { seed: req.seed, category: req.category, ...(req.distractor ? { distractor: req.distractor } : {}), light, animal, width, height, times, frames, subjectMasks, neighbours };
 }
 

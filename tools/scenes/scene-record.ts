@@ -10,7 +10,7 @@ import { renderScene, type SceneRequest } from './render.js';
 export type SceneRecord = Omit<LabelledEvent, 'analysis'> & { noReference: boolean };
 
 function toRecord(e: LabelledEvent): SceneRecord {
-  return { seed: e.seed, category: e.category, animal: e.animal, frames: e.frames, rows: e.rows, labels: e.labels, noReference: e.analysis.context.noReference };
+  return { seed: e.seed, category: e.category, ...(e.distractor ? { distractor: e.distractor } : {}), animal: e.animal, frames: e.frames, rows: e.rows, labels: e.labels, noReference: e.analysis.context.noReference };
 }
 
 /** The scene as a scan analyses it. */

@@ -1,3 +1,8 @@
 /** Seed ranges: the weight fit never sees the validation seeds. */
 export const FIT_SEEDS = { first: 100_000, perCategory: Number(process.env.FIT_PER_CATEGORY ?? 72) } as const;
 export const VALIDATION_SEEDS = { first: 900_000, perCategory: 12 } as const;
+/** Animals in a full-strength false trigger (mixedRequests): `perPair` seeds per animal and
+ *  trigger. Never trained on (see DEVELOPERS.md for what that did): the fit holds its own set
+ *  out to choose the penalty by, the validation set is the check. */
+export const MIXED_FIT_SEEDS = { first: 200_000, perPair: Number(process.env.FIT_MIXED_PER_PAIR ?? 8) } as const;
+export const MIXED_VALIDATION_SEEDS = { first: 950_000, perPair: 6 } as const;
