@@ -42,8 +42,7 @@ import { recallThreshold, sampleSizeForZeroMisses } from '../src/shared/stats/bi
 import { inParts } from './parts.js';
 
 const started = Date.now();
-const plainRequests = sceneRequests(FIT_SEEDS.first, FIT_SEEDS.perCategory, ALL_CATEGORIES);
-const requests = [...plainRequests, ...mixedRequests(MIXED_FIT_SEEDS.first, MIXED_FIT_SEEDS.perPair)];
+const requests = [...sceneRequests(FIT_SEEDS.first, FIT_SEEDS.perCategory, ALL_CATEGORIES), ...mixedRequests(MIXED_FIT_SEEDS.first, MIXED_FIT_SEEDS.perPair)];
 /**
  * The scene records, analysed afresh in one process per core; `--reuse-records` loads the ones
  * the last run left in .cache/ and analyses only the scenes it lacks (the fit then skips most

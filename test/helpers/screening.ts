@@ -3,37 +3,42 @@
  * category, printed as a table.
  */
 import { MOTION_MODEL } from '../../src/kernels/model.js';
-import { scoreEvent, Verdict } from '../../src/kernels/score.js';
+import { scoreEvent, Verdict, type VerdictName } from '../../src/kernels/score.js';
 import { isAnimal, type CategoryName } from '../../tools/scenes/categories.js';
-import { mixedRequests, runScenes, sceneRequests } from '../../tools/scenes/evaluate.js';
+import { mixedRequests, runScenes, sceneRequests, type LabelledEvent } from '../../tools/scenes/evaluate.js';
 import { MIXED_VALIDATION_SEEDS, VALIDATION_SEEDS } from '../../tools/scenes/seeds.js';
 
-export interface Tally {
-  category: CategoryName;
-  animal: boolean;
-  events: number;
-  'likely-blank': number;
-  unsure: number;
-  motion: number;
-}
+/** Events of a row of a verdict table, and how many got each verdict. */
+type VerdictCounts = { [v in VerdictName]: number } & { events: number };
 
-export function screenCategories(categories: readonly CategoryName[]): Tally[] {
-  const events = runScenes(sceneRequests(VALIDATION_SEEDS.first, VALIDATION_SEEDS.perCategory, categories));
-  const rows = new Map<CategoryName, Tally>();
+export type Tally = { category: CategoryName; animal: boolean } & VerdictCounts;
+
+/** Verdicts of the analysed events, counted per row (`rowOf` names it, or skips the event), printed as a table. */
+function tally<R extends VerdictCounts>(events: readonly LabelledEvent[], rowOf: (e: LabelledEvent) => { key: CategoryName; start: () => R } | undefined): R[] {
+  const rows = new Map<CategoryName, R>();
   for (const e of events) {
-    // A generated animal that never became visible (off the edge) is not an animal event.
-    if (isAnimal(e.category) && !e.animal) continue;
-    const t = rows.get(e.category) ?? { category: e.category, animal: e.animal, events: 0, 'likely-blank': 0, unsure: 0, motion: 0 };
-    t.events++;
-    t[scoreEvent(MOTION_MODEL, e.analysis).verdict]++;
-    rows.set(e.category, t);
+    const row = rowOf(e);
+    if (!row) continue;
+    const t = rows.get(row.key) ?? row.start();
+    const counts: VerdictCounts = t; // R only adds labels to the counts
+    counts.events++;
+    counts[scoreEvent(MOTION_MODEL, e.analysis).verdict]++;
+    rows.set(row.key, t);
   }
   const table = [...rows.values()];
   console.table(table);
   return table;
 }
 
-export const notBlank = (t: Pick<Tally, 'events' | 'likely-blank'>): number => t.events - t[Verdict.likelyBlank];
+const noVerdicts = () => ({ events: 0, 'likely-blank': 0, unsure: 0, motion: 0 });
+
+export function screenCategories(categories: readonly CategoryName[]): Tally[] {
+  const events = runScenes(sceneRequests(VALIDATION_SEEDS.first, VALIDATION_SEEDS.perCategory, categories));
+  // A generated animal that never became visible (off the edge) is not an animal event.
+  return tally(events, (e) => (isAnimal(e.category) && !e.animal ? undefined : { key: e.category, start: () => ({ category: e.category, animal: e.animal, ...noVerdicts() }) }));
+}
+
+export const notBlank = (t: VerdictCounts): number => t.events - t[Verdict.likelyBlank];
 
 /** Animal recall (events not likely-blank) and the share of false triggers called likely-blank. */
 export function summarise(table: Tally[]): { recall: number; blankShare: number } {
@@ -47,29 +52,13 @@ export function summarise(table: Tally[]): { recall: number; blankShare: number 
   return { recall: kept / nA, blankShare: blank / nF };
 }
 
-export interface MixedTally {
-  'animals with': CategoryName;
-  events: number;
-  'likely-blank': number;
-  unsure: number;
-  motion: number;
-}
+export type MixedTally = { 'animals with': CategoryName } & VerdictCounts;
 
 /**
  * Animals in the middle of a full-strength false trigger (mixedRequests): the first `perPair`
  * validation seeds of every animal and trigger, verdicts per trigger, printed as a table.
  */
 export function screenMixed(perPair: number): MixedTally[] {
-  const events = runScenes(mixedRequests(MIXED_VALIDATION_SEEDS.first, MIXED_VALIDATION_SEEDS.perPair).filter((r) => r.seed % 100 < perPair));
-  const rows = new Map<CategoryName, MixedTally>();
-  for (const e of events) {
-    if (!e.animal || !e.distractor) continue;
-    const t = rows.get(e.distractor) ?? { 'animals with': e.distractor, events: 0, 'likely-blank': 0, unsure: 0, motion: 0 };
-    t.events++;
-    t[scoreEvent(MOTION_MODEL, e.analysis).verdict]++;
-    rows.set(e.distractor, t);
-  }
-  const table = [...rows.values()];
-  console.table(table);
-  return table;
+  const events = runScenes(mixedRequests(MIXED_VALIDATION_SEEDS.first, perPair));
+  return tally(events, (e) => (e.animal && e.distractor ? { key: e.distractor, start: () => ({ 'animals with': e.distractor!, ...noVerdicts() }) } : undefined));
 }
