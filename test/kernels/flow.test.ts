@@ -5,6 +5,7 @@
  */
 import { beforeAll, describe, expect, it } from 'vitest';
 import { farnebackFlow, farnebackFlowPrepared, flowPyramid, DEFAULT_FLOW } from '../../src/kernels/flow/farneback.js';
+import { polyExpansion, polyExpansionGeneric } from '../../src/kernels/flow/poly-expansion.js';
 import { blurThenResize, gaussianBlur, resizeBilinear } from '../../src/kernels/flow/resample.js';
 import { makeGrey, type FloatImage, type GreyFrame } from '../../src/kernels/frame.js';
 import { toLuma } from '../../src/kernels/luma.js';
@@ -141,6 +142,20 @@ describe('pyramid levels: blurring only where the resize reads', () => {
     const a = blurThenResize(src, size, sigma, ow, oh).data;
     const b = resizeBilinear(gaussianBlur(src, size, sigma), ow, oh).data;
     expect(a.length).toBe(b.length);
+    expect(a.every((v, i) => Object.is(v, b[i]))).toBe(true);
+  });
+});
+
+describe('polynomial expansion: the loops written out for the default polyN', () => {
+  // Reference: the generic loops (checked against OpenCV through the flow comparisons above,
+  // where polyN 7 takes them). The written-out n = 5 passes must give the same floats bit for
+  // bit, borders included (frames narrower and shorter than the 11-tap window too).
+  it.each([[157, 93], [40, 23], [7, 4]])('%i x %i', (w, h) => {
+    const rng = makeRng(w * 7 + h);
+    const src: FloatImage = { width: w, height: h, channels: 1, data: new Float32Array(w * h).map(() => rng.range(0, 255)) };
+    const a = polyExpansion(src, 5, 1.1).data;
+    const b = polyExpansionGeneric(src, 5, 1.1).data;
+    expect(a.length).toBe(w * h * 5);
     expect(a.every((v, i) => Object.is(v, b[i]))).toBe(true);
   });
 });
