@@ -10,14 +10,14 @@ import { maxChannelChange } from './change-image.js';
 import { labelComponents, type Blob } from './components.js';
 import { unexplainedShare } from './explained-change.js';
 import { checkFrame, checkSameShape, makeGrey, type GreyFrame, type RgbFrame } from './frame.js';
-import { toLuma } from './luma.js';
+import { medianAbsLumaDiff, toLuma } from './luma.js';
 import { openClose3x3 } from './morphology.js';
 import { checkParams, SNR_SCALE, type EngineParams } from './params.js';
-import { deploymentBackground, medianAbsLumaDiff, type NeighbourFit } from './deployment-background.js';
+import { deploymentBackground, type NeighbourFit } from './deployment-background.js';
 import { edgeContrast } from './edge-contrast.js';
 import { estimateShift, shiftReference, worthCompensating, type Shift } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
-import { applyShading, fitShading, shadingMatters } from './shading.js';
+import { relight } from './shading.js';
 import { maxImage, minImage, orMask, toSnr } from './snr-image.js';
 import { temporalMedian } from './temporal-median.js';
 import { thresholdHysteresis } from './threshold.js';
@@ -65,6 +65,14 @@ export interface EventContext {
   maxGainStep: number;
   /** True for a single image with no background to compare against: motion cannot be judged. */
   noReference: boolean;
+  /** True when no background from other triggers took part (none given, or every neighbour too
+   *  unlike this trigger). The burst's own frames then show only what moved between them: an
+   *  animal that stood still through the whole burst is in their median and cannot show. Such
+   *  an event is never called likely-blank (score.ts). Measured on 2026-12-03 with the
+   *  validation seeds analysed without neighbours: animals that linger, stand partly in frame or
+   *  hover scored below the blank threshold in 2 to 6 of 10 two-frame bursts and 1 or 2 of 10
+   *  four-frame bursts; with neighbours, none. */
+  noBackground: boolean;
 }
 
 export interface EventAnalysis {
@@ -84,20 +92,6 @@ export interface EventAnalysis {
   neighbourFits?: NeighbourFit[];
   /** Whether a background from other triggers took part (given, or built from neighbours). */
   deploymentBackground: boolean;
-}
-
-/**
- * `frame` relit by the local shading that maps it onto `reference` (a cloud shadow or dappled
- * light moving over the ground, a lamp lighting near and far unevenly: src/kernels/shading.ts),
- * kept only when it makes the two agree better where most pixels are (median absolute luma
- * difference down by a tenth), so that a scene without such light is left exactly as it was.
- */
-function relight(referenceLuma: GreyFrame, frame: RgbFrame, valid?: Uint8Array): RgbFrame {
-  const luma = toLuma(frame);
-  const field = fitShading(referenceLuma, luma, valid);
-  if (!shadingMatters(field)) return frame;
-  const lit = applyShading(frame, field);
-  return medianAbsLumaDiff(referenceLuma, toLuma(lit), valid) < 0.9 * medianAbsLumaDiff(referenceLuma, luma, valid) ? lit : frame;
 }
 
 export function analyseEvent(input: EventInput): EventAnalysis {
@@ -280,6 +274,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     maxShift: Math.max(...results.map((r) => (r.compensated ? Math.hypot(r.shift.dx, r.shift.dy) : 0))),
     maxGainStep: Math.max(...results.map((r) => Math.max(...r.gain.map((g) => Math.abs(g - 1))))),
     noReference: n === 1 && !deployment,
+    noBackground: !deployment,
   };
   return { width, height, frames: results, tracks, trackFeatures: feats, trackFlows, context, heat, activity, neighbourFits, deploymentBackground: deployment !== undefined };
 }

@@ -96,6 +96,8 @@ export function createClipAnalyser(o: ClipOptions): ClipAnalyser {
         maxShift: 0,
         maxGainStep: 0,
         noReference: false,
+        // The clip's running background is the scene without its visitors.
+        noBackground: false,
       };
       const rows = trackRows(tracks.map((tr) => trackFeatures(tr, recent.length, frame.width, frame.height, SNR_SCALE)), tracks, ctx);
       let score = 0;

@@ -18,7 +18,7 @@
 import { invalidArgument } from '../shared/errors.js';
 import { checkInteger, checkNumber } from '../shared/validate.js';
 import { checkFrame, checkSameShape, type GreyFrame, type RgbFrame } from './frame.js';
-import { toLuma } from './luma.js';
+import { medianAbsLumaDiff, toLuma } from './luma.js';
 import { estimateShift, shiftReference, worthCompensating, type Shift, type ShiftReference } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
 import { temporalMedian } from './temporal-median.js';
@@ -64,23 +64,6 @@ export interface DeploymentOptions {
  */
 const TOLERANCE_FACTOR = 2;
 const TOLERANCE_LEVELS = 1;
-
-/** Median absolute difference of two luma images over valid pixels, interpolated in its bin. */
-export function medianAbsLumaDiff(a: GreyFrame, b: GreyFrame, valid?: Uint8Array): number {
-  const hist = new Uint32Array(256);
-  let n = 0;
-  for (let i = 0; i < a.data.length; i++) {
-    if (valid && !valid[i]) continue;
-    hist[Math.abs(a.data[i] - b.data[i])]++;
-    n++;
-  }
-  let acc = 0;
-  for (let v = 0; v < 256; v++) {
-    acc += hist[v];
-    if (acc >= n / 2) return v + 0.5 - (acc - n / 2) / Math.max(1, hist[v]);
-  }
-  return 255;
-}
 
 export function deploymentBackground(reference: RgbFrame, neighbours: readonly RgbFrame[], options: DeploymentOptions = {}): DeploymentBackground {
   checkFrame('reference', reference, 3);

@@ -29,3 +29,20 @@ export function toLumaFloat(rgb: RgbFrame): FloatImage {
   }
   return out;
 }
+
+/** Median absolute difference of two luma images over valid pixels, interpolated in its bin. */
+export function medianAbsLumaDiff(a: GreyFrame, b: GreyFrame, valid?: Uint8Array): number {
+  const hist = new Uint32Array(256);
+  let n = 0;
+  for (let i = 0; i < a.data.length; i++) {
+    if (valid && !valid[i]) continue;
+    hist[Math.abs(a.data[i] - b.data[i])]++;
+    n++;
+  }
+  let acc = 0;
+  for (let v = 0; v < 256; v++) {
+    acc += hist[v];
+    if (acc >= n / 2) return v + 0.5 - (acc - n / 2) / Math.max(1, hist[v]);
+  }
+  return 255;
+}

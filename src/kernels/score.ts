@@ -114,18 +114,23 @@ export function verdictFor(model: MotionModel, score: number): VerdictName {
 }
 
 export function scoreEvent(model: MotionModel, a: EventAnalysis): EventScore {
-  return scoreEventRows(model, eventFeatureRows(a), a.context.noReference);
+  return scoreEventRows(model, eventFeatureRows(a), a.context.noBackground);
 }
 
-/** The same from an event's feature rows (what the fitting tools keep of an analysis). */
-export function scoreEventRows(model: MotionModel, rows: readonly number[][], noReference: boolean): EventScore {
+/**
+ * The same from an event's feature rows (what the fitting tools keep of an analysis).
+ * `noBackground`: no background from other triggers took part (EventContext.noBackground).
+ */
+export function scoreEventRows(model: MotionModel, rows: readonly number[][], noBackground: boolean): EventScore {
   const trackScores = rows.map((r) => trackScore(model, [...r]));
   let best = -1;
   trackScores.forEach((s, i) => {
     if (best < 0 || s > trackScores[best]) best = i;
   });
   const score = best < 0 ? 0 : trackScores[best];
-  // Without a reference the pixels cannot show motion: never call such an image blank.
-  const verdict = noReference ? Verdict.unsure : verdictFor(model, score);
+  // Without a background from other triggers a subject that never moved cannot show (a single
+  // image shows nothing at all): never call such an event blank.
+  const v = verdictFor(model, score);
+  const verdict = noBackground && v === Verdict.likelyBlank ? Verdict.unsure : v;
   return { score, verdict, bestTrack: best, trackScores };
 }

@@ -17,6 +17,7 @@
  * subject's pixels are scaled by the light around them, as a subject walking into a shadow is.
  */
 import { checkFrame, checkSameShape, makeRgb, type GreyFrame, type RgbFrame } from './frame.js';
+import { medianAbsLumaDiff, toLuma } from './luma.js';
 import { selectKth } from './select.js';
 import { checkNumber } from '../shared/validate.js';
 
@@ -235,4 +236,19 @@ export function applyShading(current: RgbFrame, field: ShadingField): RgbFrame {
 export function shadingMatters(field: ShadingField): boolean {
   for (const g of field.gain) if (Math.abs(g - 1) > 0.01) return true;
   return false;
+}
+
+/**
+ * `frame` relit by the local shading that maps it onto the reference (given as its luma), kept
+ * only when it makes the two agree better where most pixels are (median absolute luma
+ * difference down by a tenth), so that a frame without such light is left exactly as it was.
+ * Used on a burst's frames (analyse-event.ts) and on each neighbouring trigger before it is
+ * judged against the reference (deployment-background.ts).
+ */
+export function relight(referenceLuma: GreyFrame, frame: RgbFrame, valid?: Uint8Array): RgbFrame {
+  const luma = toLuma(frame);
+  const field = fitShading(referenceLuma, luma, valid);
+  if (!shadingMatters(field)) return frame;
+  const lit = applyShading(frame, field);
+  return medianAbsLumaDiff(referenceLuma, toLuma(lit), valid) < 0.9 * medianAbsLumaDiff(referenceLuma, luma, valid) ? lit : frame;
 }

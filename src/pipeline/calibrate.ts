@@ -7,6 +7,11 @@
  * Clopper-Pearson lower bound of (animals at or above the threshold) / (animals) must reach the
  * target. With n labelled animals and none missed, that bound is 0.05^(1/n), so a 99% target
  * needs at least 299 labelled animals; fewer, and calibration refuses with the number needed.
+ *
+ * Only image events (bursts and single images) take part: clips are scored by the clip model,
+ * on its own scale and with its own thresholds. An event analysed without a background from
+ * other triggers is never likely-blank (EventContext.noBackground), so it counts as kept in the
+ * recall and keeps its verdict.
  */
 import { openLedger } from '../ledger/open-ledger.js';
 import { createCalibrationStore } from '../ledger/calibration-store.js';
@@ -24,20 +29,21 @@ export function calibrate(ledger: string, o: { recall: number; apply?: boolean; 
   const db = openLedger(ledger);
   try {
     const store = createCalibrationStore(db);
-    const events = store.events();
+    const events = store.events().filter((e) => e.kind !== 'clip');
     const animal = (e: (typeof events)[number]) => e.audit_animal === 1 || (e.audit_animal === null && e.decision === 'keep');
     const empty = (e: (typeof events)[number]) => e.audit_animal === 0 || (e.audit_animal === null && e.decision === 'set-aside');
-    const scores = events.filter(animal).map((e) => e.score).sort((a, b) => a - b);
+    const scores = events.filter(animal).map((e) => (e.no_background ? 1 : e.score)).sort((a, b) => a - b);
     const n = scores.length;
     const needed = sampleSizeForZeroMisses(1 - o.recall, ALPHA);
     if (n < needed) throw new MovesiftError(CalibrationErrorCode.tooFewAnimals, `${n} event(s) are labelled as holding an animal (kept, or found in an audit); showing a recall of ${o.recall} with 95% confidence needs at least ${needed}, even if none were missed. Review more events first`);
     const best = recallThreshold(scores, o.recall, ALPHA);
-    const verdictOf = (score: number) => (score < best.threshold ? 'likely-blank' : score >= MOTION_MODEL.thresholds.motion ? 'motion' : 'unsure');
+    const blank = (e: (typeof events)[number]) => !e.no_background && e.score < best.threshold;
+    const verdictOf = (e: (typeof events)[number]) => (blank(e) ? 'likely-blank' : e.score >= MOTION_MODEL.thresholds.motion ? 'motion' : 'unsure');
     const undecided = events.filter((e) => e.decision === null);
-    const changes = undecided.filter((e) => verdictOf(e.score) !== e.verdict);
+    const changes = undecided.filter((e) => verdictOf(e) !== e.verdict);
     let applied = false;
     if (o.apply) {
-      store.reverdict(changes.map((e) => ({ id: e.id, verdict: verdictOf(e.score) })));
+      store.reverdict(changes.map((e) => ({ id: e.id, verdict: verdictOf(e) })));
       applied = true;
     }
     store.log({ who: o.who ?? null, target: o.recall, threshold: best.threshold, animals: n, lower: best.lower, applied, changed: applied ? changes.length : 0 });
@@ -48,7 +54,7 @@ export function calibrate(ledger: string, o: { recall: number; apply?: boolean; 
       threshold: best.threshold,
       recall: best.kept / n,
       recallLower: best.lower,
-      wouldBeBlank: events.filter((e) => e.score < best.threshold).length,
+      wouldBeBlank: events.filter(blank).length,
       blankNow: events.filter((e) => e.verdict === 'likely-blank').length,
       undecidedChanges: changes.length,
       applied,

@@ -35,8 +35,19 @@ describe('movesift calibrate', () => {
     expect(runCli(['scan', 'sample-media', '--ledger', ledger]).code).toBe(0);
     const db = openLedger(ledger);
     fillSynthetic(db, 3000);
+    // Every tenth image analysis as if made without a background from other triggers.
+    db.prepare("UPDATE analyses SET features = json_set(features, '$.context.noBackground', json('true')) WHERE id % 10 = 0 AND event_id IN (SELECT id FROM events WHERE kind != 'clip')").run();
     const q = createReviewQueries(db);
-    const rows = db.prepare('SELECT event_id, score FROM analyses ORDER BY score').all() as Array<{ event_id: string; score: number }>;
+    // Image events only (clips have their own model); an event analysed without a background
+    // from other triggers is never likely-blank, so it counts as kept and keeps its verdict.
+    const rows = db
+      .prepare(
+        `SELECT a.event_id, a.score, coalesce(json_extract(a.features, '$.context.noBackground'), json_extract(a.features, '$.context.noReference'), 0) AS noBackground
+         FROM analyses a JOIN events e ON e.id = a.event_id WHERE e.kind != 'clip' ORDER BY a.score`,
+      )
+      .all() as Array<{ event_id: string; score: number; noBackground: number }>;
+    const clipsBefore = db.prepare("SELECT a.event_id, a.verdict FROM analyses a JOIN events e ON e.id = a.event_id WHERE e.kind = 'clip' ORDER BY 1").all();
+    expect(rows.some((r) => r.noBackground)).toBe(true);
     // People kept what scored 0.2 or more (a few low ones too) and set aside the rest.
     const keep = rows.filter((r, i) => r.score >= 0.2 || i % 97 === 0).map((r) => r.event_id);
     const aside = rows.filter((r) => !keep.includes(r.event_id)).slice(0, 500).map((r) => r.event_id);
@@ -46,7 +57,7 @@ describe('movesift calibrate', () => {
     const r = runCli(['calibrate', ledger, '--recall', '0.99']);
     expect(r.code, r.stderr).toBe(0);
     // Independent: walk up the kept scores while the stdlib bound holds.
-    const scores = rows.filter((x) => keep.includes(x.event_id)).map((x) => x.score).sort((a, b) => a - b);
+    const scores = rows.filter((x) => keep.includes(x.event_id)).map((x) => (x.noBackground ? 1 : x.score)).sort((a, b) => a - b);
     let expected = 0;
     for (let i = 0; i < scores.length; i++) {
       if (binomialTest(scores.length - i, scores.length, { alpha: 0.1 }).ci[0] < 0.99) break;
@@ -59,9 +70,15 @@ describe('movesift calibrate', () => {
     expect(runCli(['calibrate', ledger, '--recall', '0.99', '--apply']).code).toBe(0);
     const after = new Database(ledger, { readonly: true });
     expect(after.prepare("SELECT a.event_id, a.verdict FROM analyses a JOIN latest_decisions d ON d.event_id = a.event_id WHERE d.decision IS NOT NULL ORDER BY 1").all()).toEqual(decided);
-    const undecided = after.prepare('SELECT a.score, a.verdict FROM analyses a LEFT JOIN latest_decisions d ON d.event_id = a.event_id WHERE d.decision IS NULL').all() as Array<{ score: number; verdict: string }>;
+    const undecided = after
+      .prepare(
+        `SELECT a.score, a.verdict, coalesce(json_extract(a.features, '$.context.noBackground'), json_extract(a.features, '$.context.noReference'), 0) AS noBackground
+         FROM analyses a JOIN events e ON e.id = a.event_id LEFT JOIN latest_decisions d ON d.event_id = a.event_id WHERE d.decision IS NULL AND e.kind != 'clip'`,
+      )
+      .all() as Array<{ score: number; verdict: string; noBackground: number }>;
     expect(undecided.length).toBeGreaterThan(0);
-    for (const u of undecided) expect(u.verdict === 'likely-blank').toBe(u.score < expected);
+    for (const u of undecided) expect(u.verdict === 'likely-blank').toBe(!u.noBackground && u.score < expected);
+    expect(after.prepare("SELECT a.event_id, a.verdict FROM analyses a JOIN events e ON e.id = a.event_id WHERE e.kind = 'clip' ORDER BY 1").all()).toEqual(clipsBefore);
     expect((after.prepare('SELECT count(*) AS n FROM calibrations WHERE applied = 1').get() as { n: number }).n).toBe(1);
     after.close();
   }, 180_000);
