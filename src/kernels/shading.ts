@@ -13,8 +13,9 @@
  * With no trusted cell the field is 1: the frame keeps its global normalisation
  * (src/kernels/photometric.ts) and nothing else.
  *
- * Applied after the global gain and offset, so only the local remainder is corrected. A
- * subject's pixels are scaled by the light around them, as a subject walking into a shadow is.
+ * analyse-event.ts relights each frame (and the deployment background) before its global gain
+ * and offset are fitted, which then take up what the field left. A subject's pixels are scaled
+ * by the light around them, as a subject walking into a shadow is.
  */
 import { checkFrame, checkSameShape, makeRgb, type GreyFrame, type RgbFrame } from './frame.js';
 import { medianAbsLumaDiff, toLuma } from './luma.js';
@@ -242,8 +243,9 @@ export function shadingMatters(field: ShadingField): boolean {
  * `frame` relit by the local shading that maps it onto the reference (given as its luma), kept
  * only when it makes the two agree better where most pixels are (median absolute luma
  * difference down by a tenth), so that a frame without such light is left exactly as it was.
- * Used on a burst's frames (analyse-event.ts) and on each neighbouring trigger before it is
- * judged against the reference (deployment-background.ts).
+ * Used on a burst's frames and its deployment background (analyse-event.ts). Not on each
+ * neighbouring trigger before it is judged: relit against a reference that holds the animal, a
+ * neighbour took up a large, low-contrast animal as light (DEVELOPERS.md).
  */
 export function relight(referenceLuma: GreyFrame, frame: RgbFrame, valid?: Uint8Array): RgbFrame {
   const luma = toLuma(frame);
