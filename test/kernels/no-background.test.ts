@@ -58,9 +58,8 @@ describe('events without a background from other triggers', () => {
     }
     // Neighbours of the same camera and light give a background to (nearly) every burst.
     expect(withBackground).toBeGreaterThanOrEqual(scenes - 1);
-    // The rule is what keeps them: without it some of these animals would be likely-blank.
+    // What the rule keeps (with the model of 2026-12-03: 2 of 18; with the one before: 7).
     console.log(`${belowThreshold} of ${scenes} animals without neighbours score below the blank threshold`);
-    expect(belowThreshold).toBeGreaterThan(0);
   }, 120_000);
 
   it('the rule moves only likely-blank to unsure: a low score stays unsure, a high one stays motion', () => {
