@@ -15,7 +15,7 @@ import { ROOT, runCli, startCli, tempDir } from '../helpers/cli.js';
 
 const sha = (f: string): string => createHash('sha256').update(readFileSync(f)).digest('hex');
 
-function setup(decide: string[] = ['--verdict', 'unsure']): { dir: string; cards: string; ledger: string; hashes: Map<string, string> } {
+function setup(decide: string[] = ['--verdict', 'likely-blank']): { dir: string; cards: string; ledger: string; hashes: Map<string, string> } {
   const dir = tempDir('movesift-apply-');
   const cards = path.join(dir, 'cards');
   cpSync(path.join(ROOT, 'sample-media/ridge-trail'), cards, { recursive: true });
