@@ -106,9 +106,14 @@ export interface EventScore {
   trackScores: number[];
 }
 
-export function verdictFor(model: MotionModel, score: number): VerdictName {
+/**
+ * The verdict of a score under the model's thresholds. `noBackground`: no background from other
+ * triggers took part (EventContext.noBackground); a subject that never moved cannot show then (a
+ * single image shows nothing at all), so such an event is never called blank.
+ */
+export function verdictFor(model: Pick<MotionModel, 'thresholds'>, score: number, noBackground = false): VerdictName {
   checkNumber('score', score, 0, 1);
-  if (score < model.thresholds.blank) return Verdict.likelyBlank;
+  if (score < model.thresholds.blank) return noBackground ? Verdict.unsure : Verdict.likelyBlank;
   if (score >= model.thresholds.motion) return Verdict.motion;
   return Verdict.unsure;
 }
@@ -117,10 +122,7 @@ export function scoreEvent(model: MotionModel, a: EventAnalysis): EventScore {
   return scoreEventRows(model, eventFeatureRows(a), a.context.noBackground);
 }
 
-/**
- * The same from an event's feature rows (what the fitting tools keep of an analysis).
- * `noBackground`: no background from other triggers took part (EventContext.noBackground).
- */
+/** The same from an event's feature rows (what the fitting tools keep of an analysis). */
 export function scoreEventRows(model: MotionModel, rows: readonly number[][], noBackground: boolean): EventScore {
   const trackScores = rows.map((r) => trackScore(model, [...r]));
   let best = -1;
@@ -128,9 +130,5 @@ export function scoreEventRows(model: MotionModel, rows: readonly number[][], no
     if (best < 0 || s > trackScores[best]) best = i;
   });
   const score = best < 0 ? 0 : trackScores[best];
-  // Without a background from other triggers a subject that never moved cannot show (a single
-  // image shows nothing at all): never call such an event blank.
-  const v = verdictFor(model, score);
-  const verdict = noBackground && v === Verdict.likelyBlank ? Verdict.unsure : v;
-  return { score, verdict, bestTrack: best, trackScores };
+  return { score, verdict: verdictFor(model, score, noBackground), bestTrack: best, trackScores };
 }

@@ -16,6 +16,7 @@
 import { openLedger } from '../ledger/open-ledger.js';
 import { createCalibrationStore } from '../ledger/calibration-store.js';
 import { MOTION_MODEL } from '../kernels/model.js';
+import { verdictFor, Verdict } from '../kernels/score.js';
 import { recallThreshold, sampleSizeForZeroMisses } from '../shared/stats/binomial.js';
 import { MovesiftError } from '../shared/errors.js';
 import type { CalibrationResult } from '../shared/review-api.js';
@@ -37,8 +38,8 @@ export function calibrate(ledger: string, o: { recall: number; apply?: boolean; 
     const needed = sampleSizeForZeroMisses(1 - o.recall, ALPHA);
     if (n < needed) throw new MovesiftError(CalibrationErrorCode.tooFewAnimals, `${n} event(s) are labelled as holding an animal (kept, or found in an audit); showing a recall of ${o.recall} with 95% confidence needs at least ${needed}, even if none were missed. Review more events first`);
     const best = recallThreshold(scores, o.recall, ALPHA);
-    const blank = (e: (typeof events)[number]) => !e.no_background && e.score < best.threshold;
-    const verdictOf = (e: (typeof events)[number]) => (blank(e) ? 'likely-blank' : e.score >= MOTION_MODEL.thresholds.motion ? 'motion' : 'unsure');
+    const proposed = { thresholds: { ...MOTION_MODEL.thresholds, blank: best.threshold } };
+    const verdictOf = (e: (typeof events)[number]) => verdictFor(proposed, e.score, e.no_background === 1);
     const undecided = events.filter((e) => e.decision === null);
     const changes = undecided.filter((e) => verdictOf(e) !== e.verdict);
     let applied = false;
@@ -54,7 +55,7 @@ export function calibrate(ledger: string, o: { recall: number; apply?: boolean; 
       threshold: best.threshold,
       recall: best.kept / n,
       recallLower: best.lower,
-      wouldBeBlank: events.filter(blank).length,
+      wouldBeBlank: events.filter((e) => verdictOf(e) === Verdict.likelyBlank).length,
       blankNow: events.filter((e) => e.verdict === 'likely-blank').length,
       undecidedChanges: changes.length,
       applied,
