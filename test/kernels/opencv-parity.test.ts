@@ -12,7 +12,7 @@ import { makeGrey, makeRgb, type GreyFrame, type RgbFrame } from '../../src/kern
 import { toLuma } from '../../src/kernels/luma.js';
 import { close3x3, dilate3x3, erode3x3, open3x3, openClose3x3 } from '../../src/kernels/morphology.js';
 import { thresholdBinary } from '../../src/kernels/threshold.js';
-import { maxOfChannels } from '../../src/kernels/change-image.js';
+import { maxChannelChange, maxOfChannels } from '../../src/kernels/change-image.js';
 import { makeRng } from '../../tools/scenes/random.js';
 import { loadOpenCv, matBytes, mismatches, type Cv } from '../helpers/opencv.js';
 import { IR_BURST, readRgb } from '../helpers/fixtures.js';
@@ -64,6 +64,40 @@ describe('absdiff matches cv.absdiff', () => {
     const ma = toMat(a), mb = toMat(b), md = new cv.Mat();
     cv.absdiff(ma, mb, md);
     expect(mismatches(absDiff(a, b).data, md.data)).toBe('identical');
+    [ma, mb, md].forEach((m) => m.delete());
+  });
+});
+
+describe('the change image is the channel maximum of cv.absdiff', () => {
+  // maxChannelChange reads four pixels at a time from 32-bit words when both buffers sit on a
+  // 4-byte boundary, and byte by byte otherwise (and for the last pixels of an odd count).
+  // Either way it must be max(|dR|, |dG|, |dB|) of OpenCV's absolute difference.
+  const atOffset = (f: RgbFrame, offset: number): RgbFrame => {
+    const buf = new Uint8Array(f.data.length + offset);
+    buf.set(f.data, offset);
+    return { ...f, data: buf.subarray(offset) };
+  };
+  it.each([
+    [97, 61, 0],
+    [97, 61, 1],
+    [64, 3, 0],
+    [5, 1, 2],
+  ])('%i x %i, buffers at byte offset %i', (w, h, offset) => {
+    const a = randomRgb(w * 31 + h, w, h);
+    const b = randomRgb(w * 31 + h + 1, w, h);
+    const ma = toMat(a), mb = toMat(b), md = new cv.Mat();
+    cv.absdiff(ma, mb, md);
+    const expected = maxOfChannels({ width: w, height: h, channels: 3, data: Uint8Array.from(md.data) }).data;
+    expect(mismatches(maxChannelChange(atOffset(a, offset), atOffset(b, offset)).data, expected)).toBe('identical');
+    [ma, mb, md].forEach((m) => m.delete());
+  });
+  it.each(realPairs)('real pair %s', async (fa, fb) => {
+    const a = await readRgb(fa, 640);
+    const b = await readRgb(fb, 640);
+    const ma = toMat(a), mb = toMat(b), md = new cv.Mat();
+    cv.absdiff(ma, mb, md);
+    const expected = maxOfChannels({ width: a.width, height: a.height, channels: 3, data: Uint8Array.from(md.data) }).data;
+    expect(mismatches(maxChannelChange(a, b).data, expected)).toBe('identical');
     [ma, mb, md].forEach((m) => m.delete());
   });
 });

@@ -161,4 +161,20 @@ describe('selection equals a brute-force sort', () => {
     go.gain.forEach((g) => expect(g).toBeCloseTo(1, 9));
     go.offset.forEach((o) => expect(o).toBeCloseTo(0, 9));
   });
+  it('recovers a known gain and offset at every sample count up to its fixed scratch', () => {
+    // The fit samples every floor(n / 6000)-th pixel into scratch of 12000: the counts just
+    // below 6000, 12000 and 18000 pixels take the most samples (5999, 11999, 9000).
+    const rng = makeRng(5);
+    for (const n of [16, 5999, 6000, 11999, 12000, 17999, 250000]) {
+      const cur = makeRgb(n, 1);
+      const ref = makeRgb(n, 1);
+      for (let i = 0; i < cur.data.length; i++) {
+        cur.data[i] = Math.floor(rng.range(20, 200));
+        ref.data[i] = Math.round(1.2 * cur.data[i] - 10);
+      }
+      const go = fitGainOffset(ref, cur);
+      go.gain.forEach((g) => expect(g).toBeCloseTo(1.2, 2));
+      go.offset.forEach((o) => expect(o).toBeCloseTo(-10, 0));
+    }
+  });
 });
