@@ -5,7 +5,10 @@
  * verdicts per category and the two numbers the engine is judged by: animal recall and the
  * share of false triggers called likely-blank, on land and under water. Then the animals seen
  * in the middle of a full-strength false trigger (tools/scenes/evaluate.ts, mixedRequests),
- * with their recall per trigger.
+ * with their recall per trigger. Then the same seeds drawn as two-frame bursts (the generator's
+ * bursts are 3-10 frames long; many cameras take two), with their neighbours as a scan passes
+ * them: a two-frame burst has no burst median, so its change is the pair's difference and the
+ * deployment background's.
  * Run: npm run validate:wide
  */
 import { MOTION_MODEL } from '../src/kernels/model.js';
@@ -19,14 +22,17 @@ import { MIXED_VALIDATION_SEEDS, VALIDATION_SEEDS } from './scenes/seeds.js';
 const FROM = VALIDATION_SEEDS.perCategory;
 const COUNT = 24;
 // The same draw as sceneRequests (bursts, and one in four single images), past the test's seeds.
-const requests: Array<{ seed: number; category: CategoryName; distractor?: CategoryName; frames?: number }> = [
-  ...sceneRequests(VALIDATION_SEEDS.first, FROM + COUNT, ALL_CATEGORIES).filter((r) => r.seed % 1000 >= FROM),
+const plain = sceneRequests(VALIDATION_SEEDS.first, FROM + COUNT, ALL_CATEGORIES).filter((r) => r.seed % 1000 >= FROM);
+const requests: Array<{ seed: number; category: CategoryName; distractor?: CategoryName; frames?: number; pair?: boolean }> = [
+  ...plain,
   ...mixedRequests(MIXED_VALIDATION_SEEDS.first, MIXED_VALIDATION_SEEDS.perPair),
+  ...plain.map((r) => ({ seed: r.seed, category: r.category, frames: 2, pair: true })),
 ];
 
 interface Outcome {
   category: CategoryName;
   distractor?: CategoryName;
+  pair?: boolean;
   animal: boolean;
   verdict: string;
 }
@@ -35,19 +41,22 @@ const outcomes = await inParts<Outcome>(import.meta.filename, async (part, parts
     .filter((_, k) => k % parts === part)
     .map((r) => {
       const ev = analyseScene(renderScene(r));
-      return { category: r.category, distractor: r.distractor, animal: ev.animal, verdict: scoreEvent(MOTION_MODEL, ev.analysis).verdict };
+      return { category: r.category, distractor: r.distractor, pair: r.pair, animal: ev.animal, verdict: scoreEvent(MOTION_MODEL, ev.analysis).verdict };
     }),
 );
 // A generated animal that never became visible (off the edge) is not an animal event.
 const visible = outcomes.filter((o) => !isAnimal(o.category) || o.animal);
-const counted = visible.filter((o) => !o.distractor);
+const counted = visible.filter((o) => !o.distractor && !o.pair);
 const mixed = visible.filter((o) => o.distractor);
-console.table(
-  ALL_CATEGORIES.map((c) => {
-    const xs = counted.filter((o) => o.category === c);
-    return { category: c, events: xs.length, ...Object.fromEntries(Object.values(Verdict).map((v) => [v, xs.filter((o) => o.verdict === v).length])) };
-  }),
-);
+const pairs = visible.filter((o) => o.pair);
+const perCategory = (xs: Outcome[]) =>
+  console.table(
+    ALL_CATEGORIES.map((c) => {
+      const ys = xs.filter((o) => o.category === c);
+      return { category: c, events: ys.length, ...Object.fromEntries(Object.values(Verdict).map((v) => [v, ys.filter((o) => o.verdict === v).length])) };
+    }),
+  );
+perCategory(counted);
 const share = (xs: Outcome[], ok: (o: Outcome) => boolean) => `${xs.filter(ok).length}/${xs.length} = ${(xs.filter(ok).length / Math.max(1, xs.length)).toFixed(3)}`;
 const animals = counted.filter((o) => isAnimal(o.category));
 const empties = counted.filter((o) => !isAnimal(o.category));
@@ -62,3 +71,7 @@ console.table(
   }),
 );
 console.log(`animals in a full-strength false trigger (mixed seeds from ${MIXED_VALIDATION_SEEDS.first}, ${MIXED_VALIDATION_SEEDS.perPair} per animal and trigger): recall ${share(mixed, (o) => !blank(o))}`);
+perCategory(pairs);
+const pairAnimals = pairs.filter((o) => isAnimal(o.category));
+const pairEmpties = pairs.filter((o) => !isAnimal(o.category));
+console.log(`the same seeds as two-frame bursts: animal recall ${share(pairAnimals, (o) => !blank(o))}; false triggers likely-blank ${share(pairEmpties, blank)}: land ${share(pairEmpties.filter((o) => !isUnderwater(o.category)), blank)}, water ${share(pairEmpties.filter((o) => isUnderwater(o.category)), blank)}`);

@@ -32,8 +32,15 @@ function tally<R extends VerdictCounts>(events: readonly LabelledEvent[], rowOf:
 
 const noVerdicts = () => ({ events: 0, 'likely-blank': 0, unsure: 0, motion: 0 });
 
-export function screenCategories(categories: readonly CategoryName[]): Tally[] {
-  const events = runScenes(sceneRequests(VALIDATION_SEEDS.first, VALIDATION_SEEDS.perCategory, categories));
+/**
+ * The validation seeds of these categories; `twoFrames` draws the first `twoFrames` seeds of
+ * each as two-frame bursts instead (the generator's own draw is 3-10 frames, or one).
+ */
+export function screenCategories(categories: readonly CategoryName[], twoFrames?: number): Tally[] {
+  const requests = twoFrames
+    ? sceneRequests(VALIDATION_SEEDS.first, twoFrames, categories).map((r) => ({ ...r, frames: 2 }))
+    : sceneRequests(VALIDATION_SEEDS.first, VALIDATION_SEEDS.perCategory, categories);
+  const events = runScenes(requests);
   // A generated animal that never became visible (off the edge) is not an animal event.
   return tally(events, (e) => (isAnimal(e.category) && !e.animal ? undefined : { key: e.category, start: () => ({ category: e.category, animal: e.animal, ...noVerdicts() }) }));
 }

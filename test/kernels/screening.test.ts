@@ -9,41 +9,46 @@
  * product never has (0.84 claimed, 0.785 as a scan computed it), then none (0.48).
  *
  * The engine's promise, asserted: animal recall (events not likely-blank) at least 0.99 in each
- * habitat and over both. The issue's bar for the blank share is 80% of false triggers called
- * likely-blank. Measured with models/motion-weights.json (2026-12-03, with the local-light step
- * of src/kernels/shading.ts; L2 penalty 10, chosen by the fit; thresholds from out-of-fold
- * records, 99% recall with 95% confidence): recall 84/84, likely-blank 118/144 = 0.819 (land
- * 82/96 = 0.85, water 36/48 = 0.75). On the next 24 validation seeds per category (`npm run
- * validate:wide`) 225/288 = 0.781 (land 0.85, water 0.64; before the local-light step 0.736),
- * so the bar is still not met in general, and the assertion below is a floor under today's
- * level, so that a change that loses ground fails; it is not the bar. What is left is mostly
- * particles, surge, kelp and rain: many small things moving at once.
+ * habitat and over both, and the issue's bar: at least 80% of false triggers called
+ * likely-blank. Measured with models/motion-weights.json (fitted 2026-12-03: five folds, 2015
+ * animals, L2 penalty 100 chosen by the fit; thresholds from out-of-fold records, 99% recall
+ * with 95% confidence; no blank without a background): recall 84/84, likely-blank 124/144 =
+ * 0.861 (land 87/96, water 37/48). On the next 24 validation seeds per category (`npm run
+ * validate:wide`) 244/288 = 0.847 (land 0.901, water 0.740). What is left is mostly particles
+ * (5 of 24 there: many small things drifting, each like a small fish) and cloud shadows where
+ * no neighbouring trigger is alike enough to serve as a background (those stay unsure).
  *
  * Animals amid a full-strength false trigger (a fox under a drifting cloud or in the rain, a
  * fish in the surge: tools/scenes/evaluate.ts, mixedRequests) are the second table. The model
  * is not fitted on them (fitted on, they pulled its threshold to almost 0), and the 99% promise
- * does not hold for them: 37/38 here, 212/228 = 0.930 on the wider set, where the worst is an
- * animal under a drifting cloud shadow (14 of 24 kept). Their assertion is a floor too.
+ * does not hold for them: 37/38 here, 214/228 = 0.939 on the wider set, where the worst is an
+ * animal under a drifting cloud shadow (15 of 24 kept). Their assertion is a floor under
+ * today's level, so that a change that loses ground fails.
+ *
+ * Two-frame bursts are the third: the generator draws 3-10 frames (or one), and many cameras
+ * take two. A pair has no burst median; its change is the pair's difference and the deployment
+ * background's. Measured: 42/42 animals, 65/72 = 0.903 likely-blank on the first six seeds per
+ * category; 168/168 and 253/288 = 0.878 on validate:wide's seeds drawn as pairs.
  */
 import { describe, expect, it } from 'vitest';
-import { ANIMAL_CATEGORIES, LAND_FALSE, WATER_FALSE, isUnderwater } from '../../tools/scenes/categories.js';
+import { ALL_CATEGORIES, ANIMAL_CATEGORIES, LAND_FALSE, WATER_FALSE, isUnderwater } from '../../tools/scenes/categories.js';
 import { notBlank, screenCategories, screenMixed, summarise } from '../helpers/screening.js';
 
-// Today's level (0.819) less a margin of about six events in 144, so that refits do not flap.
-const BLANK_SHARE_FLOOR = 0.78;
+// The issue's bar (today 0.861, about nine events in 144 above it).
+const BLANK_SHARE = 0.8;
 // Animals amid a full-strength false trigger: today's level here (37/38 = 0.974) less a margin
 // of about three events in 38.
 const MIXED_RECALL_FLOOR = 0.9;
 
 describe('screening the validation seeds as a scan does', () => {
-  it('keeps 99% of animals in each habitat and holds the likely-blank share above its floor', () => {
+  it('keeps 99% of animals in each habitat and calls 80% of false triggers likely-blank', () => {
     const land = screenCategories([...ANIMAL_CATEGORIES.filter((c) => !isUnderwater(c)), ...LAND_FALSE]);
     expect(summarise(land).recall).toBeGreaterThanOrEqual(0.99);
     const water = screenCategories([...ANIMAL_CATEGORIES.filter(isUnderwater), ...WATER_FALSE]);
     expect(summarise(water).recall).toBeGreaterThanOrEqual(0.99);
     const { recall, blankShare } = summarise([...land, ...water]);
     expect(recall).toBeGreaterThanOrEqual(0.99);
-    expect(blankShare).toBeGreaterThanOrEqual(BLANK_SHARE_FLOOR);
+    expect(blankShare).toBeGreaterThanOrEqual(BLANK_SHARE);
     // About 110 s of scene rendering and analysis on one core here.
   }, 300_000);
 
@@ -56,4 +61,11 @@ describe('screening the validation seeds as a scan does', () => {
     expect(events).toBeGreaterThanOrEqual(30);
     expect(kept / events).toBeGreaterThanOrEqual(MIXED_RECALL_FLOOR);
   }, 120_000);
+
+  it('screens two-frame bursts to the same promise', () => {
+    // The first six validation seeds of every category, drawn as pairs (114 events, about 45 s).
+    const { recall, blankShare } = summarise(screenCategories(ALL_CATEGORIES, 6));
+    expect(recall).toBeGreaterThanOrEqual(0.99);
+    expect(blankShare).toBeGreaterThanOrEqual(BLANK_SHARE);
+  }, 240_000);
 });
