@@ -32,16 +32,16 @@ const BORDER = [0.14, 0.14, 0.4472, 0.8943, 1].map(Math.fround);
 
 function updateMatrices(R0: Float32Array, R1: Float32Array, flow: Float32Array, M: Float32Array, w: number, h: number, y0: number, y1: number): void {
   for (let y = y0; y < y1; y++) {
-    for (let x = 0; x < w; x++) {
-      const dx = flow[(y * w + x) * 2];
-      const dy = flow[(y * w + x) * 2 + 1];
+    // Flow and matrix indices stepped along the row.
+    for (let x = 0, f = y * w * 2, r0 = y * w * 5; x < w; x++, f += 2, r0 += 5) {
+      const dx = flow[f];
+      const dy = flow[f + 1];
       let fx = x + dx;
       let fy = y + dy;
       const x1 = Math.floor(fx);
       const y1i = Math.floor(fy);
       fx -= x1;
       fy -= y1i;
-      const r0 = (y * w + x) * 5;
       let r2: number, r3: number, r4: number, r5: number, r6: number;
       if (x1 >= 0 && x1 < w - 1 && y1i >= 0 && y1i < h - 1) {
         const a00 = (1 - fx) * (1 - fy), a01 = fx * (1 - fy), a10 = (1 - fx) * fy, a11 = fx * fy;
@@ -117,16 +117,18 @@ function updateFlowBox(R0: Float32Array, R1: Float32Array, flow: Float32Array, M
       h1 += buf[pad + x * 5 + 3];
       h2 += buf[pad + x * 5 + 4];
     }
-    for (let x = 0; x < w; x++) {
-      g11 += buf[pad + (x + m) * 5] - buf[pad + (x - m) * 5 - 5];
-      g12 += buf[pad + (x + m) * 5 + 1] - buf[pad + (x - m) * 5 - 4];
-      g22 += buf[pad + (x + m) * 5 + 2] - buf[pad + (x - m) * 5 - 3];
-      h1 += buf[pad + (x + m) * 5 + 3] - buf[pad + (x - m) * 5 - 2];
-      h2 += buf[pad + (x + m) * 5 + 4] - buf[pad + (x - m) * 5 - 1];
+    // The window's entering (i) and leaving (o) pixels' matrices, and the flow's index, stepped
+    // along the row rather than computed anew for every read.
+    for (let x = 0, i = pad + m * 5, o = pad - m * 5 - 5, f = y * w * 2; x < w; x++, i += 5, o += 5, f += 2) {
+      g11 += buf[i] - buf[o];
+      g12 += buf[i + 1] - buf[o + 1];
+      g22 += buf[i + 2] - buf[o + 2];
+      h1 += buf[i + 3] - buf[o + 3];
+      h2 += buf[i + 4] - buf[o + 4];
       const a = g11 * scale, b = g12 * scale, c = g22 * scale, p = h1 * scale, q = h2 * scale;
       const idet = 1 / (a * c - b * b + 1e-3);
-      flow[(y * w + x) * 2] = (a * q - b * p) * idet;
-      flow[(y * w + x) * 2 + 1] = (c * p - b * q) * idet;
+      flow[f] = (a * q - b * p) * idet;
+      flow[f + 1] = (c * p - b * q) * idet;
     }
     const y1 = y === h - 1 ? h : y - block;
     if (refresh && (y1 === h || y1 >= y0 + minStripe)) {

@@ -89,7 +89,8 @@ export function resizeBilinear(src: FloatImage, width: number, height: number): 
   const yt = sourceTaps(height, sh);
   // Everything the loops read is a local: property loads inside them left the optimised code
   // without feedback for the lines after the loop, and each call fell back to the interpreter.
-  resizeRows(src.data, out, sw, sh, ch, width, height, xt.index, xt.frac, yt.index, yt.frac);
+  if (ch === 1) resizeRows1(src.data, out, sw, sh, width, height, xt.index, xt.frac, yt.index, yt.frac);
+  else resizeRows(src.data, out, sw, sh, ch, width, height, xt.index, xt.frac, yt.index, yt.frac);
   return { width, height, channels: ch, data: out };
 }
 
@@ -109,6 +110,25 @@ function resizeRows(s: Float32Array, out: Float32Array, sw: number, sh: number, 
         const e = s[(iy1 * sw + i1) * ch + c];
         out[(y * width + x) * ch + c] = (a + fx * (b - a)) * (1 - fy) + (d + fx * (e - d)) * fy;
       }
+    }
+  }
+}
+
+/** resizeRows for one channel (the pyramid's images): no loop of one inside, the same arithmetic. */
+function resizeRows1(s: Float32Array, out: Float32Array, sw: number, sh: number, width: number, height: number, xi: Int32Array, xf: Float64Array, yi: Int32Array, yf: Float64Array): void {
+  for (let y = 0, o = 0; y < height; y++) {
+    const fy = yf[y];
+    const r = yi[y] * sw;
+    const r1 = Math.min(sh - 1, yi[y] + 1) * sw;
+    for (let x = 0; x < width; x++, o++) {
+      const i0 = xi[x];
+      const i1 = Math.min(sw - 1, i0 + 1);
+      const fx = xf[x];
+      const a = s[r + i0];
+      const b = s[r + i1];
+      const d = s[r1 + i0];
+      const e = s[r1 + i1];
+      out[o] = (a + fx * (b - a)) * (1 - fy) + (d + fx * (e - d)) * fy;
     }
   }
 }
@@ -177,14 +197,30 @@ export function blurThenResize(src: FloatImage, size: number, sigma: number, wid
 function rowBlur3(s: Float32Array, tmp: Float32Array, row: number, w: number, taps: Float64Array, xs: Int32Array): void {
   const t0 = taps[0], t1 = taps[1], t2 = taps[2];
   tmp[row] = 0 + t0 * s[row + xs[0]] + t1 * s[row + xs[1]] + t2 * s[row + xs[2]];
-  for (let x = 1, b = row; x < w - 1; x++, b++) tmp[row + x] = 0 + t0 * s[b] + t1 * s[b + 1] + t2 * s[b + 2];
+  // The three source values slide along in locals, two outputs a step (one new read each).
+  let p = s[row], q = s[row + 1];
+  let b = row + 2;
+  for (const end = row + w - 1; b < end; b += 2) {
+    const r = s[b], u = s[b + 1];
+    tmp[b - 1] = 0 + t0 * p + t1 * q + t2 * r;
+    tmp[b] = 0 + t0 * q + t1 * r + t2 * u;
+    p = r;
+    q = u;
+  }
+  if (b === row + w - 1) tmp[b - 1] = 0 + t0 * p + t1 * q + t2 * s[b];
   tmp[row + w - 1] = 0 + t0 * s[row + xs[w - 1]] + t1 * s[row + xs[w]] + t2 * s[row + xs[w + 1]];
 }
 
 /** One output row of the 3-tap vertical pass from source rows a, b, c. */
 function columnBlur3(tmp: Float32Array, out: Float32Array, o: number, a: number, b: number, c: number, w: number, taps: Float64Array): void {
   const t0 = taps[0], t1 = taps[1], t2 = taps[2];
-  for (let x = 0; x < w; x++) out[o + x] = 0 + t0 * tmp[a + x] + t1 * tmp[b + x] + t2 * tmp[c + x];
+  // Two a step (V8 does not unroll).
+  let x = 0;
+  for (; x + 1 < w; x += 2) {
+    out[o + x] = 0 + t0 * tmp[a + x] + t1 * tmp[b + x] + t2 * tmp[c + x];
+    out[o + x + 1] = 0 + t0 * tmp[a + x + 1] + t1 * tmp[b + x + 1] + t2 * tmp[c + x + 1];
+  }
+  if (x < w) out[o + x] = 0 + t0 * tmp[a + x] + t1 * tmp[b + x] + t2 * tmp[c + x];
 }
 
 /** One row at the listed columns: straight along the row away from the ends, through the mirror table near them. */
