@@ -1,7 +1,7 @@
 /**
  * A wider held-out check of the burst model than the test suite can afford: the validation
  * seeds' next 24 per category (12-35; the screening test uses 0-11, the fit never sees either),
- * analysed as a scan analyses them, in one process per core (about 4 minutes here). Prints the
+ * analysed as a scan analyses them, in one process per core (about 5 minutes here). Prints the
  * verdicts per category and the two numbers the engine is judged by: animal recall and the
  * share of false triggers called likely-blank, on land and under water. Then the animals seen
  * in the middle of a full-strength false trigger (tools/scenes/evaluate.ts, mixedRequests),
