@@ -11,7 +11,9 @@
  * The alignment's share is also timed apart on both sides ("align ratio"; "rest ratio" is the
  * chain without it). On these frames the subject pulls our correlation peak 25 px, so ours takes
  * its second pass (a window moved to the integer shift: one more forward transform) as well as
- * the sub-pixel refinement; OpenCV's side does one pass to the integer peak.
+ * the sub-pixel refinement; OpenCV's side does one pass to the integer peak. "still ratio" is
+ * the chain on a pair where nothing moves (an empty trigger of the same camera, the common case
+ * of a burst), where our alignment takes one pass.
  *
  * The flow is timed two ways. Per pair: both sides expand both frames and solve, like for like.
  * Per burst frame: what a burst's consecutive pairs cost per frame, where ours expands each
@@ -151,13 +153,20 @@ async function main(): Promise<void> {
     const ga = new cv.Mat(h, w, cv.CV_8UC1), gb = new cv.Mat(h, w, cv.CV_8UC1);
     ga.data.set(la.data);
     gb.data.set(lb.data);
-    const t = { ours: [] as number[], cv: [] as number[], oursAlign: [] as number[], cvAlign: [] as number[], oursFlow: [] as number[], oursBurst: [] as number[], cvFlow: [] as number[] };
+    // A pair where nothing moves, for the chain's common case.
+    const [sa, sb] = renderScene({ seed: 78, category: Category.empty, width: w, height: h, frames: 2 }).frames;
+    const csa = toMat(cv, sa), csb = toMat(cv, sb);
+    const saShift = shiftReference(sa);
+    const csFa = cvShiftReference(cv, csa, cvWin, w, h);
+    const t = { oursStill: [] as number[], cvStill: [] as number[], ours: [] as number[], cv: [] as number[], oursAlign: [] as number[], cvAlign: [] as number[], oursFlow: [] as number[], oursBurst: [] as number[], cvFlow: [] as number[] };
     // Warm both up first: a scan runs these thousands of times, so steady state is what counts
     // (V8 optimises our code after a few runs; OpenCV's WASM is compiled ahead of time).
     const scratch: number[] = [];
     for (let r = 0; r < 30; r++) {
       oursChain(a, aShift, b, scratch);
       cvChain(cv, ca, cvFa, cvWin, cb, w, h, scratch);
+      oursChain(sa, saShift, sb, scratch);
+      cvChain(cv, csa, csFa, cvWin, csb, w, h, scratch);
     }
     for (let r = 0; r < 10; r++) {
       farnebackFlow(la, lb);
@@ -169,6 +178,12 @@ async function main(): Promise<void> {
       t0 = performance.now();
       cvChain(cv, ca, cvFa, cvWin, cb, w, h, t.cvAlign);
       t.cv.push(performance.now() - t0);
+      t0 = performance.now();
+      oursChain(sa, saShift, sb, scratch);
+      t.oursStill.push(performance.now() - t0);
+      t0 = performance.now();
+      cvChain(cv, csa, csFa, cvWin, csb, w, h, scratch);
+      t.cvStill.push(performance.now() - t0);
       if (r < Math.max(3, reps / 3)) {
         t0 = performance.now();
         farnebackFlow(la, lb);
@@ -193,13 +208,14 @@ async function main(): Promise<void> {
       'chain ratio': (m.ours / m.cv).toFixed(2),
       'align ratio': (m.oursAlign / m.cvAlign).toFixed(2),
       'rest ratio': ((m.ours - m.oursAlign) / (m.cv - m.cvAlign)).toFixed(2),
+      'still ratio': (m.oursStill / m.cvStill).toFixed(2),
       'flow ours': m.oursFlow.toFixed(1),
       'flow OpenCV': m.cvFlow.toFixed(1),
       'flow ratio': (m.oursFlow / m.cvFlow).toFixed(2),
       'flow ours per burst frame': m.oursBurst.toFixed(1),
       'burst frame ratio': (m.oursBurst / m.cvFlow).toFixed(2),
     });
-    [ca, cb, ga, gb, cvFa, cvWin].forEach((x) => x.delete());
+    [ca, cb, ga, gb, cvFa, cvWin, csa, csb, csFa].forEach((x) => x.delete());
   }
   console.table(rows);
 }
