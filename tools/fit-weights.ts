@@ -37,7 +37,7 @@
 import { execFileSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
-import { expandFeatures, FEATURE_NAMES, type MotionModel } from '../src/kernels/score.js';
+import { blankScore, expandFeatures, FEATURE_NAMES, type MotionModel } from '../src/kernels/score.js';
 import { ALL_CATEGORIES, ANIMAL_CATEGORIES } from './scenes/categories.js';
 import { mixedRequests, sceneRequests } from './scenes/evaluate.js';
 import { recordScore, sceneRecord, type SceneRecord } from './scenes/scene-record.js';
@@ -178,15 +178,16 @@ function outOfFold(lambda: number) {
   for (let fold = 0; fold < FOLDS; fold++) {
     const m = train(events.filter((e) => e.seed % FOLDS !== fold), lambda);
     models[fold] = m;
-    // An event without a background from other triggers is never called likely-blank
-    // (EventContext.noBackground): for the blank rule it scores as if above every threshold.
-    for (const e of events) if (e.seed % FOLDS === fold) oof.set(e.seed, e.noBackground ? 1 : recordScore(m, e).score);
+    // Each event counts with the score its context allows against a blank threshold (score.ts
+    // blankScore: 1 without a background from other triggers, or under moving light above a
+    // low score).
+    for (const e of events) if (e.seed % FOLDS === fold) oof.set(e.seed, blankScore(recordScore(m, e).score, e));
   }
   const rule = recallThreshold(events.filter((e) => e.animal).map((e) => oof.get(e.seed)!), TARGET_RECALL);
   const empties = events.filter((e) => !e.animal);
   const likelyBlank = empties.filter((e) => oof.get(e.seed)! < rule.threshold).length;
   // Never trained on by any fold; each is scored by one fold's model, as an unseen animal is.
-  const heldKept = heldOut.filter((e) => e.noBackground || recordScore(models[e.seed % FOLDS], e).score >= rule.threshold).length;
+  const heldKept = heldOut.filter((e) => blankScore(recordScore(models[e.seed % FOLDS], e).score, e) >= rule.threshold).length;
   console.log(`lambda ${lambda}: blank threshold ${rule.threshold.toFixed(4)}, out of fold ${likelyBlank}/${empties.length} false triggers likely-blank; animals amid false triggers kept ${heldKept}/${heldOut.length}`);
   return { lambda, oof, rule, likelyBlank, falseTriggers: empties.length, heldKept };
 }
@@ -240,7 +241,7 @@ const model = {
     metrics: Object.fromEntries(
       ALL_CATEGORIES.map((c) => {
         const xs = scored.filter((x) => x.e.category === c);
-        const blanks = xs.filter((x) => !x.e.noBackground && x.s < blank).length;
+        const blanks = xs.filter((x) => blankScore(x.s, x.e) < blank).length;
         const oofBlank = xs.filter((x) => oof.get(x.e.seed)! < blank).length;
         return [c, { events: xs.length, likelyBlank: blanks, likelyBlankOutOfFold: oofBlank, meanScore: +(xs.reduce((a, x) => a + x.s, 0) / xs.length).toFixed(4) }];
       }),

@@ -17,7 +17,7 @@ import { deploymentBackground, type NeighbourFit } from './deployment-background
 import { edgeContrast } from './edge-contrast.js';
 import { estimateShift, shiftReference, worthCompensating, type Shift } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
-import { relight } from './shading.js';
+import { relightMeasured } from './shading.js';
 import { maxImage, minImage, orMask, toSnr } from './snr-image.js';
 import { temporalMedian } from './temporal-median.js';
 import { thresholdHysteresis } from './threshold.js';
@@ -73,6 +73,14 @@ export interface EventContext {
    *  hover scored below the blank threshold in 2 to 6 of 10 two-frame bursts and 1 or 2 of 10
    *  four-frame bursts; with neighbours, none. */
   noBackground: boolean;
+  /** The most uneven local light applied to a frame or the deployment background (shading.ts
+   *  shadeSpread: ln of the ratio between the brighter and the darker tenth of the field). */
+  lightSpread: number;
+  /** True when that light moved unevenly over the scene (lightSpread at least
+   *  params.movingLightSpread): a cloud shadow or moving shade. Such light sets off change all
+   *  over the frame, and an animal in it scores like the light. Such an event is called
+   *  likely-blank only below a low score (score.ts MOVING_LIGHT_BLANK). */
+  movingLight: boolean;
 }
 
 export interface EventAnalysis {
@@ -131,9 +139,17 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     valid = andValidity(valid, translateValidity(width, height, shift.dx, shift.dy, ignore));
     return { frame: t.frame, shift, compensated: true };
   };
+  // Local light: each frame (and the deployment background) relit against the reference; the
+  // most uneven field applied is kept (shadeSpread), to tell moving shade from a global change.
+  let lightSpread = 0;
+  const relit = (f: RgbFrame): RgbFrame => {
+    const r = relightMeasured(refLuma, f, valid);
+    lightSpread = Math.max(lightSpread, r.spread);
+    return r.frame;
+  };
   for (let k = 0; k < n; k++) {
     const a = k === ref ? { frame: frames[k], shift: { dx: 0, dy: 0, confidence: 1 }, compensated: false } : align(frames[k], refLuma);
-    const lit = k === ref ? a.frame : relight(refLuma, a.frame, valid);
+    const lit = k === ref ? a.frame : relit(a.frame);
     const go = k === ref ? { gain: [1, 1, 1], offset: [0, 0, 0] } : fitGainOffset(frames[ref], lit, valid);
     work.push(k === ref ? a.frame : applyGainOffset(lit, go));
     results.push({ shift: a.shift, compensated: a.compensated, gain: go.gain, offset: go.offset, sigma: 0, blobs: [], activeFraction: 0 });
@@ -147,7 +163,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
   let neighbourFits: NeighbourFit[] | undefined;
   if (input.background) {
     const a = align(input.background, refLuma);
-    const lit = relight(refLuma, a.frame, valid);
+    const lit = relit(a.frame);
     deployment = applyGainOffset(lit, fitGainOffset(work[ref], lit, valid));
   } else if (input.neighbours?.length) {
     // The yardstick: how much consecutive frames of this trigger disagree once aligned and
@@ -168,7 +184,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     });
     neighbourFits = db.fits;
     if (db.frame) {
-      deployment = relight(refLuma, db.frame, valid);
+      deployment = relit(db.frame);
       if (db.valid) valid = andValidity(valid, db.valid);
     }
   }
@@ -275,6 +291,8 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     maxGainStep: Math.max(...results.map((r) => Math.max(...r.gain.map((g) => Math.abs(g - 1))))),
     noReference: n === 1 && !deployment,
     noBackground: !deployment,
+    lightSpread,
+    movingLight: lightSpread >= params.movingLightSpread,
   };
   return { width, height, frames: results, tracks, trackFeatures: feats, trackFlows, context, heat, activity, neighbourFits, deploymentBackground: deployment !== undefined };
 }

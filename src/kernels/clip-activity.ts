@@ -98,6 +98,8 @@ export function createClipAnalyser(o: ClipOptions): ClipAnalyser {
         noReference: false,
         // The clip's running background is the scene without its visitors.
         noBackground: false,
+        lightSpread: 0,
+        movingLight: false,
       };
       const rows = trackRows(tracks.map((tr) => trackFeatures(tr, recent.length, frame.width, frame.height, SNR_SCALE)), tracks, ctx);
       let score = 0;

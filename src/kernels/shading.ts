@@ -248,9 +248,31 @@ export function shadingMatters(field: ShadingField): boolean {
  * neighbour took up a large, low-contrast animal as light (DEVELOPERS.md).
  */
 export function relight(referenceLuma: GreyFrame, frame: RgbFrame, valid?: Uint8Array): RgbFrame {
+  return relightMeasured(referenceLuma, frame, valid).frame;
+}
+
+/** relight, and the spread (shadeSpread) of the field it applied: 0 when it left the frame as it was. */
+export function relightMeasured(referenceLuma: GreyFrame, frame: RgbFrame, valid?: Uint8Array): { frame: RgbFrame; spread: number } {
   const luma = toLuma(frame);
   const field = fitShading(referenceLuma, luma, valid);
-  if (!shadingMatters(field)) return frame;
+  if (!shadingMatters(field)) return { frame, spread: 0 };
   const lit = applyShading(frame, field);
-  return medianAbsLumaDiff(referenceLuma, toLuma(lit), valid) < 0.9 * medianAbsLumaDiff(referenceLuma, luma, valid) ? lit : frame;
+  return medianAbsLumaDiff(referenceLuma, toLuma(lit), valid) < 0.9 * medianAbsLumaDiff(referenceLuma, luma, valid) ? { frame: lit, spread: shadeSpread(field) } : { frame, spread: 0 };
+}
+
+/**
+ * How unevenly a field relights the frame: the range of ln(gain) between the 10th and the 90th
+ * percentile of its trusted cells (cells filled from their neighbours say nothing of their
+ * own). A change of exposure or of the lamp's power moves every cell alike and spreads little;
+ * a cloud shadow or moving shade over part of the scene spreads by the light's ratio between
+ * shade and sun. 0 with fewer than four trusted cells.
+ */
+export function shadeSpread(field: ShadingField): number {
+  const logs: number[] = [];
+  field.gain.forEach((g, i) => {
+    if (field.trusted[i]) logs.push(Math.log(g));
+  });
+  if (logs.length < 4) return 0;
+  logs.sort((a, b) => a - b);
+  return logs[Math.floor(0.9 * (logs.length - 1))] - logs[Math.floor(0.1 * (logs.length - 1))];
 }

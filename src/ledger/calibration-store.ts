@@ -9,9 +9,9 @@ export interface LabelledEventRow {
   id: string;
   kind: string;
   score: number;
-  /** 1 when no background from other triggers took part in the analysis (never likely-blank);
-   *  analyses made before the flag existed give their single-image flag. */
-  no_background: number;
+  /** The analysis's EventContext as JSON (score.ts blankScore reads it; older analyses lack
+   *  the later fields), null when it has none. */
+  context: string | null;
   verdict: string;
   decision: string | null;
   audit_animal: number | null;
@@ -21,7 +21,7 @@ export function createCalibrationStore(db: Ledger) {
   const s = {
     events: db.prepare<[], LabelledEventRow>(
       `SELECT e.id, e.kind, a.score, a.verdict, ld.decision,
-         coalesce(json_extract(a.features, '$.context.noBackground'), json_extract(a.features, '$.context.noReference'), 0) AS no_background,
+         json_extract(a.features, '$.context') AS context,
          (SELECT x.animal FROM audit_answers x WHERE x.event_id = e.id ORDER BY x.id DESC LIMIT 1) AS audit_animal
        FROM events e JOIN analyses a ON a.event_id = e.id LEFT JOIN latest_decisions ld ON ld.event_id = e.id`,
     ),

@@ -134,6 +134,7 @@ async function runImages(task: EventTask): Promise<TaskOutcome> {
       background: neighbours.length,
       deployment: a.deploymentBackground,
       neighbours: (a.neighbourFits ?? []).map((f) => ({ kept: f.kept, disagreement: round(f.disagreement, 2), shift: { dx: round(f.shift.dx, 2), dy: round(f.shift.dy, 2) } })),
+      movingLight: a.context.movingLight,
       frames: a.frames.map((f, k) => ({
         position: kept[k],
         shift: { dx: round(f.shift.dx, 2), dy: round(f.shift.dy, 2), confidence: round(f.shift.confidence, 2) },

@@ -9,14 +9,14 @@
  * needs at least 299 labelled animals; fewer, and calibration refuses with the number needed.
  *
  * Only image events (bursts and single images) take part: clips are scored by the clip model,
- * on its own scale and with its own thresholds. An event analysed without a background from
- * other triggers is never likely-blank (EventContext.noBackground), so it counts as kept in the
- * recall and keeps its verdict.
+ * on its own scale and with its own thresholds. Each event counts with the score its context
+ * allows against a blank threshold (score.ts blankScore: an event analysed without a background
+ * from other triggers is never likely-blank, one under moving light only below a low score).
  */
 import { openLedger } from '../ledger/open-ledger.js';
 import { createCalibrationStore } from '../ledger/calibration-store.js';
 import { MOTION_MODEL } from '../kernels/model.js';
-import { verdictFor, Verdict } from '../kernels/score.js';
+import { blankScore, verdictFor, Verdict, type BlankGuard } from '../kernels/score.js';
 import { recallThreshold, sampleSizeForZeroMisses } from '../shared/stats/binomial.js';
 import { MovesiftError } from '../shared/errors.js';
 import type { CalibrationResult } from '../shared/review-api.js';
@@ -30,16 +30,19 @@ export function calibrate(ledger: string, o: { recall: number; apply?: boolean; 
   const db = openLedger(ledger);
   try {
     const store = createCalibrationStore(db);
-    const events = store.events().filter((e) => e.kind !== 'clip');
+    const events = store
+      .events()
+      .filter((e) => e.kind !== 'clip')
+      .map((e) => ({ ...e, guard: (e.context ? JSON.parse(e.context) : {}) as BlankGuard }));
     const animal = (e: (typeof events)[number]) => e.audit_animal === 1 || (e.audit_animal === null && e.decision === 'keep');
     const empty = (e: (typeof events)[number]) => e.audit_animal === 0 || (e.audit_animal === null && e.decision === 'set-aside');
-    const scores = events.filter(animal).map((e) => (e.no_background ? 1 : e.score)).sort((a, b) => a - b);
+    const scores = events.filter(animal).map((e) => blankScore(e.score, e.guard)).sort((a, b) => a - b);
     const n = scores.length;
     const needed = sampleSizeForZeroMisses(1 - o.recall, ALPHA);
     if (n < needed) throw new MovesiftError(CalibrationErrorCode.tooFewAnimals, `${n} event(s) are labelled as holding an animal (kept, or found in an audit); showing a recall of ${o.recall} with 95% confidence needs at least ${needed}, even if none were missed. Review more events first`);
     const best = recallThreshold(scores, o.recall, ALPHA);
     const proposed = { thresholds: { ...MOTION_MODEL.thresholds, blank: best.threshold } };
-    const verdictOf = (e: (typeof events)[number]) => verdictFor(proposed, e.score, e.no_background === 1);
+    const verdictOf = (e: (typeof events)[number]) => verdictFor(proposed, e.score, e.guard);
     const undecided = events.filter((e) => e.decision === null);
     const changes = undecided.filter((e) => verdictOf(e) !== e.verdict);
     let applied = false;

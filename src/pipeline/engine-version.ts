@@ -6,6 +6,7 @@
 import { createHash } from 'node:crypto';
 import { CLIP_MODEL, MOTION_MODEL } from '../kernels/model.js';
 import { DEFAULT_PARAMS } from '../kernels/params.js';
+import { MOVING_LIGHT_BLANK } from '../kernels/score.js';
 import pkg from '../../package.json' with { type: 'json' };
 
 const sha = (s: string): string => createHash('sha256').update(s).digest('hex');
@@ -20,7 +21,8 @@ export interface AnalysisSettings {
 }
 
 export function paramHash(s: AnalysisSettings): string {
-  return sha(JSON.stringify({ engine: ENGINE_VERSION, params: DEFAULT_PARAMS, ...s })).slice(0, 16);
+  // The verdict rule's own constant too: it changes verdicts without changing the model.
+  return sha(JSON.stringify({ engine: ENGINE_VERSION, params: DEFAULT_PARAMS, movingLightBlank: MOVING_LIGHT_BLANK, ...s })).slice(0, 16);
 }
 
 export function hashOf(parts: readonly string[]): string {

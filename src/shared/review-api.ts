@@ -85,6 +85,9 @@ export interface ImageDetail {
    *  was recorded), and how each neighbour fitted. */
   deployment?: boolean;
   neighbours?: Array<{ kept: boolean; disagreement: number; shift: { dx: number; dy: number } }>;
+  /** Light moved unevenly over the scene (a cloud shadow, moving shade): likely-blank only at a
+   *  very low score (EventContext.movingLight). Absent in ledgers scanned before it was recorded. */
+  movingLight?: boolean;
   frames: Array<{ position: number; shift: { dx: number; dy: number; confidence: number }; compensated: boolean; blobs: BlobBox[] }>;
   bestTrack: Array<BlobBox & { position: number }>;
 }

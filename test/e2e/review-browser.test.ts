@@ -128,6 +128,10 @@ describe('review app in Chromium', () => {
 
   it('flips a burst frame by frame with its overlay', async () => {
     const burst = ledgerRows<{ id: string; n: number }>("SELECT e.id, count(*) AS n FROM events e JOIN event_media em ON em.event_id = e.id WHERE e.kind = 'burst' GROUP BY e.id ORDER BY e.start_sort_ms LIMIT 1")[0];
+    // As if light had moved over this burst (a cloud shadow): the view must say what that means.
+    const rw = new Database(ledger);
+    rw.prepare("UPDATE analyses SET detail = json_set(detail, '$.movingLight', json('true')) WHERE event_id = ?").run(burst.id);
+    rw.close();
     await page.locator(`.card[data-event="${burst.id}"]`).click();
     await page.keyboard.press('Enter');
     await until('the burst view', async () => (await page.locator('[data-testid=burst-frame]').count()) === 1);
@@ -145,6 +149,7 @@ describe('review app in Chromium', () => {
     const kept = detail.neighbours.filter((x) => x.kept).length;
     expect(detail.background).toBeGreaterThan(0);
     expect(await text('[data-testid=background-note]')).toBe(detail.deployment ? `compared with ${kept} of ${detail.background} neighbouring triggers` : `neighbouring triggers too unlike this one (${kept} of ${detail.background} matched): an animal that never moved cannot show`);
+    expect(await text('[data-testid=light-note]')).toMatch(/^light moving over the scene \(cloud or shade\)/);
     await page.keyboard.press('ArrowRight'); // past the last frame: stays
     expect(await text('[data-testid=frame-counter]')).toBe(`frame ${burst.n} of ${burst.n}`);
     expect(await page.locator('[data-testid=blob-layer]').count()).toBe(1);

@@ -69,13 +69,13 @@ describe('events without a background from other triggers', () => {
     // near 0; a strong, persistent one near 1 (checked, not assumed).
     const faint = lo.map((v, j) => (j === 2 ? 0.1 : v));
     const strong = hi.map((v, j) => (j === 5 ? lo[j] : v));
-    const low = scoreEventRows(MOTION_MODEL, [faint], false);
+    const low = scoreEventRows(MOTION_MODEL, [faint], {});
     expect(low.verdict).toBe(Verdict.likelyBlank);
-    expect(scoreEventRows(MOTION_MODEL, [faint], true).verdict).toBe(Verdict.unsure);
-    const high = scoreEventRows(MOTION_MODEL, [strong], false);
+    expect(scoreEventRows(MOTION_MODEL, [faint], { noBackground: true }).verdict).toBe(Verdict.unsure);
+    const high = scoreEventRows(MOTION_MODEL, [strong], {});
     expect(high.verdict).toBe(Verdict.motion);
-    expect(scoreEventRows(MOTION_MODEL, [strong], true).verdict).toBe(Verdict.motion);
+    expect(scoreEventRows(MOTION_MODEL, [strong], { noBackground: true }).verdict).toBe(Verdict.motion);
     // No track at all: score 0, unsure without a background.
-    expect(scoreEventRows(MOTION_MODEL, [], true).verdict).toBe(Verdict.unsure);
+    expect(scoreEventRows(MOTION_MODEL, [], { noBackground: true }).verdict).toBe(Verdict.unsure);
   });
 });

@@ -14,6 +14,8 @@ import { describe, expect, it } from 'vitest';
 import { openLedger } from '../../src/ledger/open-ledger.js';
 import { createReviewQueries } from '../../src/ledger/review-queries.js';
 import { fillSynthetic } from '../../src/ledger/synthetic-fill.js';
+import { MOTION_MODEL } from '../../src/kernels/model.js';
+import { MOVING_LIGHT_BLANK } from '../../src/kernels/score.js';
 import { resolveBinaries } from '../../src/media/ffmpeg-binaries.js';
 import { parseCsv } from '../../src/pipeline/deployments-table.js';
 import { ROOT, runCli, tempDir } from '../helpers/cli.js';
@@ -37,17 +39,26 @@ describe('movesift calibrate', () => {
     fillSynthetic(db, 3000);
     // Every tenth image analysis as if made without a background from other triggers.
     db.prepare("UPDATE analyses SET features = json_set(features, '$.context.noBackground', json('true')) WHERE id % 10 = 0 AND event_id IN (SELECT id FROM events WHERE kind != 'clip')").run();
+    // And every seventh as if analysed under moving light (a cloud shadow drifting over).
+    db.prepare("UPDATE analyses SET features = json_set(features, '$.context.movingLight', json('true')) WHERE id % 7 = 3 AND event_id IN (SELECT id FROM events WHERE kind != 'clip')").run();
     const q = createReviewQueries(db);
-    // Image events only (clips have their own model); an event analysed without a background
-    // from other triggers is never likely-blank, so it counts as kept and keeps its verdict.
+    // Image events only (clips have their own model). An event analysed without a background
+    // from other triggers is never likely-blank, so it counts as kept and keeps its verdict; one
+    // under moving light is likely-blank only below MOVING_LIGHT_BLANK, so above that it counts
+    // as kept too.
     const rows = db
       .prepare(
-        `SELECT a.event_id, a.score, coalesce(json_extract(a.features, '$.context.noBackground'), json_extract(a.features, '$.context.noReference'), 0) AS noBackground
+        `SELECT a.event_id, a.score, coalesce(json_extract(a.features, '$.context.noBackground'), json_extract(a.features, '$.context.noReference'), 0) AS noBackground,
+           coalesce(json_extract(a.features, '$.context.movingLight'), 0) AS movingLight
          FROM analyses a JOIN events e ON e.id = a.event_id WHERE e.kind != 'clip' ORDER BY a.score`,
       )
-      .all() as Array<{ event_id: string; score: number; noBackground: number }>;
+      .all() as Array<{ event_id: string; score: number; noBackground: number; movingLight: number }>;
     const clipsBefore = db.prepare("SELECT a.event_id, a.verdict FROM analyses a JOIN events e ON e.id = a.event_id WHERE e.kind = 'clip' ORDER BY 1").all();
     expect(rows.some((r) => r.noBackground)).toBe(true);
+    const counted = (x: { score: number; noBackground: number; movingLight: number }) => (x.noBackground || (x.movingLight && x.score >= MOVING_LIGHT_BLANK) ? 1 : x.score);
+    // Some moving-light events on either side of the low threshold, among those kept below.
+    expect(rows.filter((r) => r.movingLight && !r.noBackground && r.score < MOVING_LIGHT_BLANK).length).toBeGreaterThan(0);
+    expect(rows.filter((r) => r.movingLight && !r.noBackground && r.score >= MOVING_LIGHT_BLANK && r.score < MOTION_MODEL.thresholds.blank).length).toBeGreaterThan(0);
     // People kept what scored 0.2 or more (a few low ones too) and set aside the rest.
     const keep = rows.filter((r, i) => r.score >= 0.2 || i % 97 === 0).map((r) => r.event_id);
     const aside = rows.filter((r) => !keep.includes(r.event_id)).slice(0, 500).map((r) => r.event_id);
@@ -57,7 +68,7 @@ describe('movesift calibrate', () => {
     const r = runCli(['calibrate', ledger, '--recall', '0.99']);
     expect(r.code, r.stderr).toBe(0);
     // Independent: walk up the kept scores while the stdlib bound holds.
-    const scores = rows.filter((x) => keep.includes(x.event_id)).map((x) => (x.noBackground ? 1 : x.score)).sort((a, b) => a - b);
+    const scores = rows.filter((x) => keep.includes(x.event_id)).map(counted).sort((a, b) => a - b);
     let expected = 0;
     for (let i = 0; i < scores.length; i++) {
       if (binomialTest(scores.length - i, scores.length, { alpha: 0.1 }).ci[0] < 0.99) break;
@@ -72,12 +83,13 @@ describe('movesift calibrate', () => {
     expect(after.prepare("SELECT a.event_id, a.verdict FROM analyses a JOIN latest_decisions d ON d.event_id = a.event_id WHERE d.decision IS NOT NULL ORDER BY 1").all()).toEqual(decided);
     const undecided = after
       .prepare(
-        `SELECT a.score, a.verdict, coalesce(json_extract(a.features, '$.context.noBackground'), json_extract(a.features, '$.context.noReference'), 0) AS noBackground
+        `SELECT a.score, a.verdict, coalesce(json_extract(a.features, '$.context.noBackground'), json_extract(a.features, '$.context.noReference'), 0) AS noBackground,
+           coalesce(json_extract(a.features, '$.context.movingLight'), 0) AS movingLight
          FROM analyses a JOIN events e ON e.id = a.event_id LEFT JOIN latest_decisions d ON d.event_id = a.event_id WHERE d.decision IS NULL AND e.kind != 'clip'`,
       )
-      .all() as Array<{ score: number; verdict: string; noBackground: number }>;
+      .all() as Array<{ score: number; verdict: string; noBackground: number; movingLight: number }>;
     expect(undecided.length).toBeGreaterThan(0);
-    for (const u of undecided) expect(u.verdict === 'likely-blank').toBe(!u.noBackground && u.score < expected);
+    for (const u of undecided) expect(u.verdict === 'likely-blank').toBe(counted(u) < expected);
     expect(after.prepare("SELECT a.event_id, a.verdict FROM analyses a JOIN events e ON e.id = a.event_id WHERE e.kind = 'clip' ORDER BY 1").all()).toEqual(clipsBefore);
     expect((after.prepare('SELECT count(*) AS n FROM calibrations WHERE applied = 1').get() as { n: number }).n).toBe(1);
     after.close();
