@@ -245,13 +245,9 @@ export function shadingMatters(field: ShadingField): boolean {
  * difference down by a tenth), so that a frame without such light is left exactly as it was.
  * Used on a burst's frames and its deployment background (analyse-event.ts). Not on each
  * neighbouring trigger before it is judged: relit against a reference that holds the animal, a
- * neighbour took up a large, low-contrast animal as light (DEVELOPERS.md).
+ * neighbour took up a large, low-contrast animal as light (DEVELOPERS.md). Returned with the
+ * spread (shadeSpread) of the field it applied, 0 when it left the frame as it was.
  */
-export function relight(referenceLuma: GreyFrame, frame: RgbFrame, valid?: Uint8Array): RgbFrame {
-  return relightMeasured(referenceLuma, frame, valid).frame;
-}
-
-/** relight, and the spread (shadeSpread) of the field it applied: 0 when it left the frame as it was. */
 export function relightMeasured(referenceLuma: GreyFrame, frame: RgbFrame, valid?: Uint8Array): { frame: RgbFrame; spread: number } {
   const luma = toLuma(frame);
   const field = fitShading(referenceLuma, luma, valid);
