@@ -58,12 +58,14 @@ const perCategory = (xs: Outcome[]) =>
   );
 perCategory(counted);
 const share = (xs: Outcome[], ok: (o: Outcome) => boolean) => `${xs.filter(ok).length}/${xs.length} = ${(xs.filter(ok).length / Math.max(1, xs.length)).toFixed(3)}`;
-const animals = counted.filter((o) => isAnimal(o.category));
-const empties = counted.filter((o) => !isAnimal(o.category));
 const blank = (o: Outcome) => o.verdict === Verdict.likelyBlank;
+/** The two numbers the engine is judged by, for a set of plain (not mixed) events. */
+const judged = (xs: Outcome[]): string => {
+  const empties = xs.filter((o) => !isAnimal(o.category));
+  return `animal recall ${share(xs.filter((o) => isAnimal(o.category)), (o) => !blank(o))}; false triggers likely-blank ${share(empties, blank)}: land ${share(empties.filter((o) => !isUnderwater(o.category)), blank)}, water ${share(empties.filter((o) => isUnderwater(o.category)), blank)}`;
+};
 console.log(`seeds ${FROM}-${FROM + COUNT - 1} of each category, model thresholds blank ${MOTION_MODEL.thresholds.blank.toFixed(4)}`);
-console.log(`animal recall ${share(animals, (o) => !blank(o))}`);
-console.log(`false triggers likely-blank ${share(empties, blank)}: land ${share(empties.filter((o) => !isUnderwater(o.category)), blank)}, water ${share(empties.filter((o) => isUnderwater(o.category)), blank)}`);
+console.log(judged(counted));
 console.table(
   [...new Set(mixed.map((o) => o.distractor!))].map((d) => {
     const xs = mixed.filter((o) => o.distractor === d);
@@ -72,6 +74,4 @@ console.table(
 );
 console.log(`animals in a full-strength false trigger (mixed seeds from ${MIXED_VALIDATION_SEEDS.first}, ${MIXED_VALIDATION_SEEDS.perPair} per animal and trigger): recall ${share(mixed, (o) => !blank(o))}`);
 perCategory(pairs);
-const pairAnimals = pairs.filter((o) => isAnimal(o.category));
-const pairEmpties = pairs.filter((o) => !isAnimal(o.category));
-console.log(`the same seeds as two-frame bursts: animal recall ${share(pairAnimals, (o) => !blank(o))}; false triggers likely-blank ${share(pairEmpties, blank)}: land ${share(pairEmpties.filter((o) => !isUnderwater(o.category)), blank)}, water ${share(pairEmpties.filter((o) => isUnderwater(o.category)), blank)}`);
+console.log(`the same seeds as two-frame bursts: ${judged(pairs)}`);
