@@ -10,15 +10,15 @@
  *                                              a larger set for benchmarks (about 2,000 images)
  */
 import { spawn } from 'node:child_process';
-import { mkdirSync, rmSync, utimesSync, writeFileSync } from 'node:fs';
+import { mkdirSync, rmSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { parseArgs } from 'node:util';
-import sharp from 'sharp';
 import { resolveBinaries } from '../src/media/ffmpeg-binaries.js';
 import { Category, type CategoryName } from './scenes/categories.js';
 import { renderScene } from './scenes/render.js';
 import { renderClip } from './scenes/clip.js';
 import { makeRng } from './scenes/random.js';
+import { writeJpeg } from './scenes/write-deployment.js';
 
 const { values } = parseArgs({ options: { out: { type: 'string' }, scale: { type: 'string' }, 'clip-seconds': { type: 'string' }, 'clip-width': { type: 'string' }, seed: { type: 'string' } } });
 const out = path.resolve(values.out ?? 'sample-media');
@@ -39,8 +39,6 @@ const plans: Plan[] = [
   { folder: 'creek-bend', light: 'ir', start: '2025-06-01T21:40:00', triggers: [Category.irLamp, Category.animalNight, Category.empty, Category.rain, Category.animalNight, Category.insect, Category.irLamp, Category.shake, Category.empty, Category.animalNight, Category.wind, Category.animalLingering] },
 ];
 
-const exifTime = (ms: number): string => new Date(ms).toISOString().slice(0, 19).replace('T', ' ').replace(/-/g, ':');
-
 async function writeDeployment(p: Plan, di: number, truth: unknown[]): Promise<number> {
   const dir = path.join(out, p.folder);
   mkdirSync(dir, { recursive: true });
@@ -58,11 +56,7 @@ async function writeDeployment(p: Plan, di: number, truth: unknown[]): Promise<n
         const name = `IMG_${String(counter++).padStart(4, '0')}.JPG`;
         const ms = t + k * 1000;
         const file = path.join(dir, name);
-        await sharp(scene.frames[k].data, { raw: { width: scene.width, height: scene.height, channels: 3 } })
-          .jpeg({ quality: 80 })
-          .withExif({ IFD0: { Make: 'Movesift Sim', Model: 'TC-1 (invented)', DateTime: exifTime(ms) }, IFD2: { DateTimeOriginal: exifTime(ms) } })
-          .toFile(file);
-        utimesSync(file, ms / 1000, ms / 1000);
+        await writeJpeg(file, scene.frames[k], ms, 80, 'TC-1 (invented)');
         files.push(`${p.folder}/${name}`);
         images++;
       }

@@ -19,6 +19,13 @@ export function progressPrinter(mode: 'json' | 'bar' | 'quiet', out: NodeJS.Writ
       out.write(`  ! ${p.code} ${p.message}\n`);
       return;
     }
+    if (p.type === 'deployment') {
+      if (!p.note) return;
+      if (drawn) out.write('\r\x1b[K');
+      drawn = false;
+      out.write(`  i ${p.note}\n`);
+      return;
+    }
     if (mode !== 'bar') return;
     if (p.type === 'phase') {
       if (drawn) out.write('\n');

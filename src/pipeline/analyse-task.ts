@@ -8,7 +8,7 @@ import { activityWindows, runningMedian, type ActivityWindow } from '../kernels/
 import { analyseEvent } from '../kernels/analyse-event.js';
 import { createClipAnalyser } from '../kernels/clip-activity.js';
 import type { Blob } from '../kernels/components.js';
-import { detectDataStripInFrames, ignoreMask } from '../kernels/data-strip.js';
+import { detectDataStripInFrames, ignoreMask, widerStrip, type DataStrip } from '../kernels/data-strip.js';
 import type { RgbFrame } from '../kernels/frame.js';
 import { CLIP_MODEL, MOTION_MODEL } from '../kernels/model.js';
 import { eventFeatureRows, scoreEvent, verdictFor, FEATURE_NAMES, type VerdictName } from '../kernels/score.js';
@@ -36,6 +36,9 @@ export interface EventTask {
   videoFps: number;
   flow: boolean;
   cacheDir: string;
+  /** The deployment's data strip by consensus of its triggers (deployment-strip.ts), when it had
+   *  enough of them; the event ignores the wider of it and its own. */
+  deploymentStrip?: DataStrip;
 }
 
 export interface TaskFailure {
@@ -103,7 +106,8 @@ async function runImages(task: EventTask): Promise<TaskOutcome> {
     const fr = await decodeNeighbour(n, task.width, task.height);
     if (fr) neighbours.push(fr);
   }
-  const strip = detectDataStripInFrames(frames.length >= 3 ? frames : [...frames, ...neighbours]);
+  const own = detectDataStripInFrames(frames.length >= 3 ? frames : [...frames, ...neighbours]);
+  const strip = widerStrip(own, task.deploymentStrip);
   const mask = strip.top || strip.bottom ? ignoreMask(task.width, task.height, strip) : undefined;
   const a = analyseEvent({ frames, neighbours, mask, flow: task.flow });
   const s = scoreEvent(MOTION_MODEL, a);
@@ -130,6 +134,8 @@ async function runImages(task: EventTask): Promise<TaskOutcome> {
     },
     detail: {
       strip,
+      // Which detection set the ignored rows: the event's own frames, the deployment's consensus, or both agreed.
+      stripFrom: strip.top + strip.bottom === 0 ? null : own.top === strip.top && own.bottom === strip.bottom ? 'event' : 'deployment',
       // Neighbours offered and how each fitted (kept ones make the deployment background).
       background: neighbours.length,
       deployment: a.deploymentBackground,

@@ -1,8 +1,12 @@
 /** Progress events of a scan, as printed by `--json-progress` (one JSON object per line). */
 import type { ScanSummary } from './scan.js';
+import type { DataStrip } from '../kernels/data-strip.js';
 
 export type ScanProgress =
   | { type: 'phase'; phase: 'discover' | 'read' | 'analyse'; total?: number; skipped?: number }
   | { type: 'progress'; phase: 'read' | 'analyse'; done: number; total: number; file?: string; rate?: number; etaS?: number }
   | { type: 'error'; file: string; code: string; message: string }
+  /** What the scan learned of a deployment before screening its events: its data strip by
+   *  consensus over `frames` triggers (none when too few; `note` then says so). */
+  | { type: 'deployment'; deployment: string; frames: number; strip?: DataStrip; note?: string }
   | { type: 'done'; summary: ScanSummary };

@@ -18,6 +18,8 @@ import { createHash } from 'node:crypto';
 import type { ScanProgress } from './progress.js';
 import { createWorkerPool } from './worker-pool.js';
 import { safeOutcome } from './safe-outcome.js';
+import { deploymentStrip } from './deployment-strip.js';
+import { MIN_CONSENSUS_FRAMES } from '../kernels/data-strip.js';
 
 export interface ScanOptions {
   roots: string[];
@@ -120,13 +122,29 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
       for (const [dep, media] of byDeployment) {
         const byId = new Map(media.map((m) => [m.id, m]));
         const groups = groupEvents(media.map((m) => ({ mediaId: m.id, rel: m.rel_path, kind: m.kind, sortMs: m.capture_sort_ms })), gap, MAX_EVENT_FRAMES);
-        const neighbourMap = imageNeighbours(groups.filter((g) => g.kind !== 'clip'), byId);
+        const images = groups.filter((g) => g.kind !== 'clip');
+        const neighbourMap = imageNeighbours(images, byId);
+        // The deployment's data strip by consensus of its triggers (deployment-strip.ts). It
+        // joins each event's input hash: when a new card changes it, the events are screened again.
+        const samples = images.map((g) => {
+          const m = byId.get(g.items[g.items.length >> 1].mediaId)!;
+          const size = analysisSize(m.width, m.height, Math.min(settings.analysisWidth, m.width));
+          return { abs: path.join(root, m.rel_path), display: m.rel_path, width: size.width, height: size.height };
+        });
+        const consensus = images.length ? await deploymentStrip(samples) : { frames: 0 };
+        if (images.length) {
+          emit({
+            type: 'deployment', deployment: dep, frames: consensus.frames, strip: consensus.strip,
+            note: consensus.strip ? undefined : `${dep}: ${images.length} image trigger(s), too few (${MIN_CONSENSUS_FRAMES} needed) to find its data strip across triggers; each event's own strip detection is used`,
+          });
+        }
+        const stripKey = consensus.strip ? [`strip:${consensus.strip.top},${consensus.strip.bottom}`] : [];
         for (const g of groups) {
           const items = g.items.map((it) => byId.get(it.mediaId)!);
           const id = eventIdOf(dep, items[0].rel_path);
           const plan: EventPlan = {
             id, deployment_id: dep, kind: g.kind, start_time: items[0].capture_time, end_time: items[items.length - 1].capture_time,
-            start_sort_ms: items[0].capture_sort_ms, input_hash: hashOf(items.map((m) => `${m.rel_path}:${m.fingerprint}`)), media: items.map((m) => m.id),
+            start_sort_ms: items[0].capture_sort_ms, input_hash: hashOf([...items.map((m) => `${m.rel_path}:${m.fingerprint}`), ...(g.kind === 'clip' ? [] : stripKey)]), media: items.map((m) => m.id),
           };
           plans.push(plan);
           const first = items[0];
@@ -134,7 +152,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
           const neighbours = (neighbourMap.get(g) ?? []).map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path }));
           tasks.push({
             plan, rootId, rels: items.map((m) => m.rel_path),
-            task: { eventId: id, kind: g.kind, files: items.map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path })), neighbours, width: size.width, height: size.height, videoFps: settings.videoFps, flow: settings.flow, cacheDir },
+            task: { eventId: id, kind: g.kind, files: items.map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path })), neighbours, width: size.width, height: size.height, videoFps: settings.videoFps, flow: settings.flow, cacheDir, deploymentStrip: consensus.strip },
           });
         }
       }

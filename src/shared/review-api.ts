@@ -79,6 +79,9 @@ export interface ActivityWindow {
 /** `detail` of a burst or single image (pipeline/analyse-task.ts). */
 export interface ImageDetail {
   strip: { top: number; bottom: number };
+  /** Where the ignored rows came from: this event's frames, or the deployment's triggers by
+   *  consensus (older ledgers: absent). */
+  stripFrom?: 'event' | 'deployment' | null;
   /** Neighbouring triggers offered as the deployment background. */
   background: number;
   /** Whether a deployment background was built from them (absent in ledgers scanned before it

@@ -9,7 +9,7 @@ import { makeRng, type Rng } from './random.js';
 import { makeSubject, subjectAt, subjectRadius, type Subject } from './subject.js';
 import { valueNoise, type Field } from './texture.js';
 import { paintStrip, type StripStyle } from './data-strip.js';
-import { makeWorld, sampleWorld, type Light, type World } from './world.js';
+import { makeWorld, sampleWorld, type Light, type World, type WorldStyle } from './world.js';
 
 export interface Scene {
   seed: number;
@@ -44,7 +44,7 @@ interface Effects {
   noise: number;
 }
 
-function plan(rng: Rng, category: CategoryName, light: Light, distractor?: CategoryName): Effects {
+function plan(rng: Rng, category: CategoryName, light: Light, distractor?: CategoryName, noiseScale = 1): Effects {
   const e: Effects = {
     swayAmp: rng.range(0, 1.2),
     swayRate: rng.range(1.5, 5),
@@ -58,7 +58,7 @@ function plan(rng: Rng, category: CategoryName, light: Light, distractor?: Categ
     insect: false,
     caustics: light === 'water' ? rng.range(0, 0.08) : 0,
     particles: light === 'water' ? rng.int(0, 30) : 0,
-    noise: light === 'ir' ? rng.range(2.5, 7) : light === 'water' ? rng.range(1.5, 4) : rng.range(1, 3.5),
+    noise: noiseScale * (light === 'ir' ? rng.range(2.5, 7) : light === 'water' ? rng.range(1.5, 4) : rng.range(1, 3.5)),
   };
   applyEffect(rng, e, category);
   // An animal in the middle of a false trigger (a fox in the rain, a fish in the surge): the
@@ -133,9 +133,9 @@ export interface Renderer {
   duration: number;
 }
 
-export function makeRenderer(rng: Rng, category: CategoryName, light: Light, width: number, height: number, duration: number, worldRng: Rng = rng, distractor?: CategoryName): Renderer {
-  const world = makeWorld(worldRng, width, height, light);
-  const effects = plan(rng, category, light, distractor);
+export function makeRenderer(rng: Rng, category: CategoryName, light: Light, width: number, height: number, duration: number, worldRng: Rng = rng, distractor?: CategoryName, style: SceneStyle = {}): Renderer {
+  const world = makeWorld(worldRng, width, height, light, style);
+  const effects = plan(rng, category, light, distractor, style.noiseScale);
   let subject: Subject | undefined;
   if (isAnimal(category)) {
     const fish = category === Category.fishCrossing || category === Category.fishHovering;
@@ -149,7 +149,7 @@ export function makeRenderer(rng: Rng, category: CategoryName, light: Light, wid
             ? rng.pick(['cross', 'linger'] as const)
             : 'cross';
     const size = (small ? rng.range(0.04, 0.07) : rng.range(0.1, 0.3)) * width;
-    subject = makeSubject(rng, width, height, { kind: fish ? 'fish' : 'land', size, motion, night: light === 'ir', duration });
+    subject = makeSubject(rng, width, height, { kind: fish ? 'fish' : 'land', size, motion, night: light === 'ir', duration, spot: style.spot });
   }
   const s = width / 320;
   const ipx = rng.range(0.2, 0.8) * width, ipy = rng.range(0.2, 0.8) * height;
@@ -300,6 +300,14 @@ function renderNeighbours(req: SceneRequest, r: Renderer, light: Light, width: n
   return out;
 }
 
+/** A camera and place beyond the generator's usual ranges (tools/scenes/families.ts draws them). */
+export interface SceneStyle extends WorldStyle {
+  /** Sensor noise as a multiple of the usual draw. */
+  noiseScale?: number;
+  /** Where this place's visitors pass or stay (SubjectPlan.spot). */
+  spot?: { x: number; y: number };
+}
+
 export interface SceneRequest {
   seed: number;
   category: CategoryName;
@@ -319,6 +327,12 @@ export interface SceneRequest {
   /** A false-trigger category whose effect an animal scene also carries at full strength
    *  (same light as the animal: a land trigger for land animals, a water one for fish). */
   distractor?: CategoryName;
+  /** Camera and place beyond the usual ranges. */
+  style?: SceneStyle;
+  /** Seconds between the frames of a burst (drawn from 0.3-1.2 s if absent). */
+  intervalS?: number;
+  /** False: render no neighbouring triggers (a caller that renders a whole deployment has them). */
+  neighbours?: boolean;
 }
 
 export function renderScene(req: SceneRequest): Scene {
@@ -337,9 +351,10 @@ export function renderScene(req: SceneRequest): Scene {
   const width = req.width ?? rng.pick([192, 256, 320, 384, 480]);
   const height = req.height ?? Math.round((width * rng.pick([9, 12])) / 16);
   const n = req.frames ?? rng.int(3, 10);
-  const interval = rng.range(0.3, 1.2);
+  const drawnInterval = rng.range(0.3, 1.2);
+  const interval = req.intervalS ?? drawnInterval;
   const duration = (n - 1) * interval;
-  const r = makeRenderer(rng, req.category, light, width, height, Math.max(duration, 1), req.world !== undefined ? makeRng(req.world * 7919 + 23) : rng, req.distractor);
+  const r = makeRenderer(rng, req.category, light, width, height, Math.max(duration, 1), req.world !== undefined ? makeRng(req.world * 7919 + 23) : rng, req.distractor, req.style);
   const t0 = (req.event ?? 0) * 53.7;
   const times = Array.from({ length: n }, (_, i) => t0 + i * interval);
   const frames: RgbFrame[] = [];
@@ -350,7 +365,7 @@ export function renderScene(req: SceneRequest): Scene {
     frames.push(frame);
     subjectMasks.push(mask);
   }
-  const neighbours = renderNeighbours(req, r, light, width, height, duration, frameRng);
+  const neighbours = req.neighbours === false ? [] : renderNeighbours(req, r, light, width, height, duration, frameRng);
   if (req.strip) {
     const clock = rng.int(0, 86399);
     frames.forEach((f, i) => paintStrip(f, req.strip!, `${clock + Math.floor(times[i])}${i + 1}${n}`));

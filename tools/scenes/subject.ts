@@ -32,6 +32,10 @@ export interface SubjectPlan {
   motion: 'cross' | 'linger' | 'partial';
   night: boolean;
   duration: number;
+  /** A place visitors keep coming back to (a game trail, a bait, a burrow), as shares of the
+   *  frame: a crossing subject walks along `y`, a lingering one stays near (`x`, `y`). Absent,
+   *  the place is drawn for each subject. */
+  spot?: { x: number; y: number };
 }
 
 export function makeSubject(rng: Rng, width: number, height: number, plan: SubjectPlan): Subject {
@@ -64,15 +68,17 @@ export function makeSubject(rng: Rng, width: number, height: number, plan: Subje
   let at: Subject['at'];
   if (plan.motion === 'cross') {
     const speed = rng.range(0.04, 0.2) * width; // px per second
-    const y0 = rng.range(0.35, 0.85) * height;
+    const y0 = plan.spot ? plan.spot.y * height + rng.range(-0.03, 0.03) * height : rng.range(0.35, 0.85) * height;
     const vy = rng.range(-0.05, 0.05) * height;
     // Start so that the subject is in frame for the middle of the burst.
     const mid = rng.range(0.25, 0.75) * width;
     const tMid = plan.duration / 2;
     at = (t) => ({ x: mid + dir * speed * (t - tMid), y: y0 + vy * (t - tMid) });
   } else if (plan.motion === 'linger') {
-    const x0 = rng.range(margin, width - margin);
-    const y0 = rng.range(Math.min(height - margin, height * 0.35), height - margin);
+    const drawnX = rng.range(margin, width - margin);
+    const drawnY = rng.range(Math.min(height - margin, height * 0.35), height - margin);
+    const x0 = plan.spot ? plan.spot.x * width + rng.range(-0.02, 0.02) * width : drawnX;
+    const y0 = plan.spot ? plan.spot.y * height + rng.range(-0.02, 0.02) * height : drawnY;
     const drift = rng.range(0, 0.01) * width;
     at = (t) => ({ x: x0 + drift * Math.sin(t * 0.7), y: y0 + 0.3 * drift * Math.cos(t * 0.5) });
   } else {

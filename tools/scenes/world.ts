@@ -24,7 +24,17 @@ function mix(a: number[], b: number[], t: number): number[] {
   return a.map((v, i) => v + (b[i] - v) * t);
 }
 
-export function makeWorld(rng: Rng, width: number, height: number, light: Light): World {
+/** What a camera's place may hold beyond the generator's usual range (all optional: absent, the
+ *  usual draw, so existing seeds render as before). */
+export interface WorldStyle {
+  /** Range the share of the ground under vegetation is drawn from (usual: 0.25-0.7). */
+  vegetation?: readonly [number, number];
+  /** Water colour (RGB 0..1 at the surface; usual: a blue-green) and turbidity 0..1: the share
+   *  of each pixel's colour replaced by the water's own haze. */
+  water?: { tint: readonly number[]; turbidity: number };
+}
+
+export function makeWorld(rng: Rng, width: number, height: number, light: Light, style: WorldStyle = {}): World {
   const margin = Math.ceil(Math.max(width, height) * 0.06) + 4;
   const gw = width + 2 * margin;
   const gh = height + 2 * margin;
@@ -33,7 +43,7 @@ export function makeWorld(rng: Rng, width: number, height: number, light: Light)
   const detail = valueNoise(rng, rng.range(3, 6) * scale, 2);
   const cover = valueNoise(rng, rng.range(50, 120) * scale, 2);
   const phaseField = valueNoise(rng, 30 * scale, 1);
-  const vegAmount = rng.range(0.25, 0.7);
+  const vegAmount = rng.range(...(style.vegetation ?? ([0.25, 0.7] as const)));
   const groundA = light === 'water' ? [0.05, 0.25, 0.3] : [rng.range(0.3, 0.5), rng.range(0.25, 0.4), rng.range(0.15, 0.25)];
   const groundB = light === 'water' ? [0.3, 0.45, 0.4] : [rng.range(0.55, 0.75), rng.range(0.5, 0.65), rng.range(0.35, 0.5)];
   const vegA = light === 'water' ? [0.1, 0.3, 0.12] : [rng.range(0.05, 0.15), rng.range(0.2, 0.35), rng.range(0.05, 0.12)];
@@ -58,6 +68,10 @@ export function makeWorld(rng: Rng, width: number, height: number, light: Light)
       } else if (light === 'water') {
         const depth = depthTop - 0.5 * (y / gh);
         rgb = rgb.map((val) => val * depth);
+        if (style.water) {
+          const { tint, turbidity } = style.water;
+          rgb = rgb.map((val, k) => val * (1 - turbidity) + tint[k] * depth * turbidity);
+        }
       }
       colour[p * 3] = rgb[0];
       colour[p * 3 + 1] = rgb[1];

@@ -72,7 +72,7 @@ export function BurstView({ event, heat, bindActions }: Props) {
         <span className="mono">{m.rel_path}</span>
         {analysed && <span>{analysed.blobs.length} change blob{analysed.blobs.length === 1 ? '' : 's'}</span>}
         {analysed?.compensated && <span>camera shift corrected ({analysed.shift.dx}, {analysed.shift.dy}) px</span>}
-        {detail.strip.top + detail.strip.bottom > 0 && <span>data strip ignored</span>}
+        {detail.strip.top + detail.strip.bottom > 0 && <span>{detail.stripFrom === 'deployment' ? "data strip ignored (found across this deployment's triggers)" : 'data strip ignored'}</span>}
         <span data-testid="background-note">{backgroundNote(event.kind, detail)}</span>
         {detail.movingLight && <span data-testid="light-note">light moving over the scene (cloud or shade): an animal in it can score like the light, so this is called likely-blank only at a very low score</span>}
       </div>
