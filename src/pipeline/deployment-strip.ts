@@ -34,7 +34,9 @@ export async function deploymentStrip(candidates: readonly StripSample[]): Promi
   const sizes = new Map<string, StripSample[]>();
   for (const c of candidates) {
     const k = `${c.width}x${c.height}`;
-    sizes.set(k, [...(sizes.get(k) ?? []), c]);
+    const list = sizes.get(k);
+    if (list) list.push(c);
+    else sizes.set(k, [c]);
   }
   const same = [...sizes.values()].sort((a, b) => b.length - a.length)[0];
   const count = Math.min(SAMPLE, same.length);
