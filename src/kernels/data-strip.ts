@@ -143,9 +143,55 @@ export function detectDataStripConsensus(frames: readonly RgbFrame[], options: S
   const o = checkOptions({ tol: 12, ...options });
   const flatTol = Math.min(o.tol, checkOptions({}).tol);
   const median = temporalMedian(frames);
-  const top = runFromEdge(median, true, o, true, flatTol);
-  const bottom = runFromEdge(median, false, o, true, flatTol);
-  return { top: top ? Math.min(median.height, top + 1) : 0, bottom: bottom ? Math.min(median.height, bottom + 1) : 0 };
+  const steady = steadyRows(frames, median);
+  const side = (fromTop: boolean): number => {
+    const rows = Math.max(runFromEdge(median, fromTop, o, true, flatTol), steadyRun(steady, fromTop, Math.floor(median.height * o.maxShare)));
+    return rows ? Math.min(median.height, rows + 1) : 0;
+  };
+  return { top: side(true), bottom: side(false) };
+}
+
+/**
+ * The second consensus cue: a strip is the same grey print in every trigger, while the picture
+ * either carries colour or changes between triggers (light, season, day and night). Glyphs
+ * shrunk from a large frame to the analysis size leave no row two-valued, so thin strips with
+ * text across the whole width fail the flat-or-ink test above; this cue does not look at the
+ * values at all. A row is steady when at least STEADY_SHARE of its pixels are grey in the
+ * median (chroma at most 24, as above) and stay within 12 levels of it in at least
+ * STEADY_SHARE of the frames (the margin of the JPEG ringing, as above). The changing clock
+ * and counter cover a minority of a row. A static grey picture (a night-only camera, one
+ * burst's frames) is steady too: a run longer than the strip limit is then left to the
+ * flat-or-ink test, as is any run a picture row could extend.
+ */
+const STEADY_SHARE = 0.8;
+const STEADY_TOL = 12;
+
+function steadyRows(frames: readonly RgbFrame[], median: RgbFrame): Uint8Array {
+  const { width, height } = median;
+  const out = new Uint8Array(height);
+  const luma = (d: Uint8Array, i: number): number => 0.299 * d[3 * i] + 0.587 * d[3 * i + 1] + 0.114 * d[3 * i + 2];
+  const need = Math.ceil(STEADY_SHARE * frames.length);
+  for (let y = 0; y < height; y++) {
+    let steady = 0;
+    for (let x = 0; x < width; x++) {
+      const i = y * width + x;
+      const r = median.data[3 * i], g = median.data[3 * i + 1], b = median.data[3 * i + 2];
+      if (Math.max(r, g, b) - Math.min(r, g, b) > 24) continue;
+      const m = luma(median.data, i);
+      let near = 0;
+      for (const f of frames) if (Math.abs(luma(f.data, i) - m) <= STEADY_TOL) near++;
+      if (near >= need) steady++;
+    }
+    out[y] = steady >= STEADY_SHARE * width ? 1 : 0;
+  }
+  return out;
+}
+
+/** Rows of steady print from one edge; 0 when fewer than 2 or the run passes `limit`. */
+function steadyRun(steady: Uint8Array, fromTop: boolean, limit: number): number {
+  let k = 0;
+  while (k < steady.length && steady[fromTop ? k : steady.length - 1 - k]) k++;
+  return k >= 2 && k <= limit ? k : 0;
 }
 
 /** The wider of two strips on each edge (an event's own and its deployment's). */

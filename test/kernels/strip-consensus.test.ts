@@ -20,19 +20,19 @@ import path from 'node:path';
 
 const W = 640, H = 480, ANALYSIS = 384;
 
-async function asScanned(f: RgbFrame): Promise<RgbFrame> {
-  const jpeg = await sharp(f.data, { raw: { width: f.width, height: f.height, channels: 3 } }).jpeg({ quality: 60 }).toBuffer();
+async function asScanned(f: RgbFrame, quality = 60): Promise<RgbFrame> {
+  const jpeg = await sharp(f.data, { raw: { width: f.width, height: f.height, channels: 3 } }).jpeg({ quality }).toBuffer();
   const h = Math.round((f.height * ANALYSIS) / f.width);
   const { data } = await sharp(jpeg).resize(ANALYSIS, h).raw().toBuffer({ resolveWithObject: true });
   return { width: ANALYSIS, height: h, channels: 3, data: new Uint8Array(data) };
 }
 
 /** Middle frames of `n` triggers of one camera: day and night, calm and windy, strip painted. */
-async function deploymentFrames(strip: StripStyle | undefined, n = 8, world = 41): Promise<RgbFrame[]> {
+async function deploymentFrames(strip: StripStyle | undefined, n = 8, world = 41, size = { width: W, height: H, quality: 60 }): Promise<RgbFrame[]> {
   const out: RgbFrame[] = [];
   for (let i = 0; i < n; i++) {
-    const s = renderScene({ seed: 4100 + i, world, category: i % 2 ? Category.wind : Category.empty, light: i % 3 ? 'day' : 'ir', frames: 1, width: W, height: H, strip, neighbours: false });
-    out.push(await asScanned(s.frames[0]));
+    const s = renderScene({ seed: 4100 + i, world, category: i % 2 ? Category.wind : Category.empty, light: i % 3 ? 'day' : 'ir', frames: 1, width: size.width, height: size.height, strip, neighbours: false });
+    out.push(await asScanned(s.frames[0], size.quality));
   }
   return out;
 }
@@ -52,6 +52,29 @@ describe('data strip by consensus of a deployment', () => {
     for (const side of ['top', 'bottom'] as const) {
       const painted = edge === side || edge === 'both';
       if (painted) {
+        expect(found[side], side).toBeGreaterThanOrEqual(rows);
+        expect(found[side], side).toBeLessThanOrEqual(rows + 2);
+      } else expect(found[side], side).toBe(0);
+    }
+  }, 30_000);
+
+  // Thin strips on large frames: shrunk 2.5 times, the glyphs of text spread over the width
+  // leave no row two-valued, so only the steady-print cue finds them (these four layouts, from
+  // held-out scene families, were found as 0, 0, 5 of 15 and 3 of 11 rows there before that
+  // cue; drawn here on another world, three of the four still fail without it).
+  it.each([
+    ['top', 0.0275, 216, 5, false],
+    ['top', 0.057, 211, 0, false],
+    ['top', 0.024, 1, 244, true],
+    ['both', 0.037, 16, 243, false],
+  ] as const)('thin %s strip on a 960 px frame, %f of the height, bar %i ink %i, spread text', async (edge, share, bar, ink, icon) => {
+    const size = { width: 960, height: 640, quality: 55 };
+    const frames = await deploymentFrames({ edge, share, bar, ink, layout: 'spread', icon }, 12, 44, size);
+    const h = frames[0].height;
+    const rows = Math.round(Math.max(5, Math.round(size.height * share)) * (h / size.height));
+    const found = detectDataStripConsensus(frames);
+    for (const side of ['top', 'bottom'] as const) {
+      if (edge === side || edge === 'both') {
         expect(found[side], side).toBeGreaterThanOrEqual(rows);
         expect(found[side], side).toBeLessThanOrEqual(rows + 2);
       } else expect(found[side], side).toBe(0);
