@@ -25,6 +25,9 @@ export interface WindowOptions {
   postRollS?: number;
   mergeGapS?: number;
   durationS?: number;
+  /** A run of active frames becomes a window only if some frame of it reaches this level (at
+   *  least `threshold`; see clipSeedLevel). Absent, every run does. */
+  seed?: number;
 }
 
 export function activityWindows(times: readonly number[], scores: readonly number[], o: WindowOptions): ActivityWindow[] {
@@ -37,13 +40,14 @@ export function activityWindows(times: readonly number[], scores: readonly numbe
   if (k % 2 === 0) throw invalidArgument('smoothFrames', 'an odd number of frames', k);
   const end = o.durationS ?? (times.length ? times[times.length - 1] : 0);
   const level = k === 1 ? scores : runningMedian(scores, k);
+  const seeded = seededRuns(level, o.threshold, checkNumber('seed', o.seed ?? o.threshold, o.threshold, 1));
   const runs: ActivityWindow[] = [];
   for (let i = 0; i < times.length; i++) {
-    if (!(level[i] >= o.threshold)) continue;
+    if (!seeded[i]) continue;
     const last = runs[runs.length - 1];
     // Consecutive active frames are one run whatever the gap setting; runs with inactive frames
     // between them merge when closer than the gap.
-    const continues = i > 0 && level[i - 1] >= o.threshold;
+    const continues = i > 0 && seeded[i - 1] === 1;
     if (last && (continues || times[i] - last.end_s <= gap)) {
       last.end_s = times[i];
       last.score = Math.max(last.score, scores[i]);
@@ -60,6 +64,50 @@ export function activityWindows(times: readonly number[], scores: readonly numbe
     } else out.push({ ...w });
   }
   return out;
+}
+
+/** 1 for frames of runs at or above `threshold` that reach `seed` somewhere (hysteresis in time). */
+function seededRuns(level: readonly number[], threshold: number, seed: number): Uint8Array {
+  const out = new Uint8Array(level.length);
+  for (let i = 0; i < level.length; ) {
+    if (!(level[i] >= threshold)) {
+      i++;
+      continue;
+    }
+    let j = i;
+    let reached = false;
+    for (; j < level.length && level[j] >= threshold; j++) if (level[j] >= seed) reached = true;
+    if (reached) out.fill(1, i, j);
+    i = j;
+  }
+  return out;
+}
+
+/**
+ * The level a clip's own activity must reach to open a window, from the clip itself: what one
+ * place's water does all the time (caustics, particles, swaying weed, a tree in wind) is the
+ * clip's typical level, and a subject stands out from it. `level` is the series the windows are
+ * judged on (the scores after the running median of `smoothFrames`). Over the frames with a
+ * counted track, in logits: the median plus `spread` times the distance from the tenth percentile to the median
+ * (a robust width of the lower side, which visitors do not reach). Never below `threshold`, never
+ * above the 95th percentile of those frames (so the clip's strongest twentieth always can seed:
+ * in a clip with a subject most of the time, its runs hold those frames); and `threshold` itself
+ * when fewer than `minActiveShare` of the frames have a track at all (then activity is rare,
+ * not the place's habit) or there are fewer than `minFrames` of them to judge by.
+ * Spread 2 and the shares are our choices (on generated clips of the fitted family; the held-out
+ * family and a real clip were judged after, docs/ has the numbers).
+ */
+export function clipSeedLevel(level: readonly number[], threshold: number, spread = 2, minActiveShare = 0.4, minFrames = 40): number {
+  checkNumber('threshold', threshold, 0, 1);
+  const logit = (v: number): number => {
+    const p = Math.min(1 - 1e-6, Math.max(1e-6, v));
+    return Math.log(p / (1 - p));
+  };
+  const active = level.filter((v) => v > 0).map(logit).sort((a, b) => a - b);
+  if (active.length < minFrames || active.length < minActiveShare * level.length) return threshold;
+  const q = (f: number): number => active[Math.min(active.length - 1, Math.floor(f * active.length))];
+  const fence = Math.min(q(0.5) + spread * (q(0.5) - q(0.1)), q(0.95));
+  return Math.max(threshold, 1 / (1 + Math.exp(-fence)));
 }
 
 /** Centred running median of odd width k; the ends use the frames that exist. */

@@ -32,10 +32,11 @@ export interface ClipOptions {
 
 export interface FrameActivity {
   t: number;
-  /** The best score of the tracks that reach this frame (0 when none does). */
+  /** The best score of the tracks that reach this frame and were seen in at least half the
+   *  window's frames (0 when none is). */
   score: number;
   blobs: Blob[];
-  /** Each track reaching this frame: its raw feature row, its blob here, its score. */
+  /** Each track reaching this frame, however short: its raw feature row, its blob here, its score. */
   tracks: Array<{ row: number[]; blob: Blob; score: number }>;
 }
 
@@ -46,6 +47,12 @@ export interface ClipAnalyser {
 export function createClipAnalyser(o: ClipOptions): ClipAnalyser {
   const params = checkParams(o.params ?? {});
   const K = checkInteger('windowFrames', o.windowFrames ?? 6, 2, 60);
+  // A frame's activity counts only tracks seen in at least half the window's frames. A subject
+  // in view persists from frame to frame; leaves flickering in wind, caustic glints and
+  // compression blocks make blobs that rarely repeat at one place (in a real clip of a tree in
+  // wind most of the best tracks had one point in six). A subject that enters is counted from
+  // its third frame, which the windows' pre-roll covers.
+  const minTrackFrames = Math.ceil(K / 2);
   const history = createMedianHistory(params.historySeconds, params.historySamples);
   let prev: RgbFrame | undefined;
   let lastT = 0;
@@ -109,7 +116,7 @@ export function createClipAnalyser(o: ClipOptions): ClipAnalyser {
         if (last.frame !== recent.length - 1) return;
         const s = trackScore(o.model, rows[i]);
         scored.push({ row: rows[i], blob: last.blob, score: s });
-        score = Math.max(score, s);
+        if (tr.points.length >= minTrackFrames) score = Math.max(score, s);
       });
       return { t, score, blobs, tracks: scored };
     },

@@ -4,7 +4,7 @@
  * in-process or in a worker thread. A frame that fails to decode is reported and the rest of
  * the event is still analysed.
  */
-import { activityWindows, runningMedian, type ActivityWindow } from '../kernels/activity-windows.js';
+import { activityWindows, clipSeedLevel, runningMedian, type ActivityWindow } from '../kernels/activity-windows.js';
 import { analyseEvent } from '../kernels/analyse-event.js';
 import { createClipAnalyser } from '../kernels/clip-activity.js';
 import type { Blob } from '../kernels/components.js';
@@ -184,11 +184,17 @@ async function runClip(task: EventTask): Promise<TaskOutcome> {
   const problem = stream.problem();
   const end = times[times.length - 1] ?? 0;
   if (problem) failures.push({ display: file.display, code: MediaErrorCode.videoDecode, message: `${file.display}: decoding stopped early at ${end.toFixed(1)} s (${problem}); the part before it was screened`, stage: 'partial' });
-  const windows = activityWindows(times, scores, { threshold: CLIP_MODEL.thresholds.blank, durationS: end, ...CLIP_MODEL.window });
-  // The clip's score is the highest level its windows are built from (the smoothed frame
-  // scores), so a clip is likely-blank exactly when it has no window. One frame that alone
-  // reached the motion level still makes it unsure: a missed fish costs more than a look.
+  // The level the windows are built from (activityWindows smooths the same way). A window opens
+  // only where it rises above what this clip's place does all the time (clipSeedLevel); it then
+  // spans every frame above the fitted threshold around that point.
   const level = runningMedian(scores, CLIP_MODEL.window.smoothFrames);
+  const seed = clipSeedLevel(level, CLIP_MODEL.thresholds.blank);
+  const windows = activityWindows(times, scores, { threshold: CLIP_MODEL.thresholds.blank, durationS: end, ...CLIP_MODEL.window, seed });
+  // The clip's score is the highest level its windows are built from (the smoothed frame
+  // scores), so a clip with a window is never likely-blank. A clip whose activity reached the
+  // threshold but never the clip's own seed level has no window and is unsure, not blank: a
+  // person looks at it whole. One frame that alone reached the motion level still makes it
+  // unsure: a missed fish costs more than a look.
   const score = level.reduce((m, v) => Math.max(m, v), 0);
   const rawPeak = scores.reduce((m, v) => Math.max(m, v), 0);
   let verdict = verdictFor(CLIP_MODEL, score);
@@ -208,7 +214,7 @@ async function runClip(task: EventTask): Promise<TaskOutcome> {
     eventId: task.eventId,
     score,
     verdict,
-    features: { frames: times.length, durationS: round(end, 2), rawPeak: round(rawPeak, 4) },
+    features: { frames: times.length, durationS: round(end, 2), rawPeak: round(rawPeak, 4), seed: round(seed, 4) },
     detail: { times: times.map((t) => round(t, 2)), scores: scores.map((v) => round(v, 3)) },
     windows: windows.map((w) => ({ start_s: round(w.start_s, 2), end_s: round(w.end_s, 2), score: round(w.score, 4) })),
     previews,

@@ -6,7 +6,7 @@
 import type { RgbFrame } from '../../src/kernels/frame.js';
 import { Category, isUnderwater, type CategoryName } from './categories.js';
 import { makeRng } from './random.js';
-import { makeRenderer, renderFrame } from './render.js';
+import { makeRenderer, renderFrame, type SceneStyle } from './render.js';
 
 export interface Clip {
   seed: number;
@@ -34,6 +34,10 @@ export interface ClipRequest {
   category?: CategoryName;
   /** The place's nuisance (a false-trigger category); absent, the subject category's mild defaults. */
   nuisance?: CategoryName;
+  /** A second nuisance at full strength at the same time (surge and particles, caustics and kelp). */
+  distractor?: CategoryName;
+  /** Water and camera beyond the usual ranges (tint, turbidity, noise). */
+  style?: SceneStyle;
 }
 
 export function renderClip(req: ClipRequest): Clip {
@@ -41,7 +45,7 @@ export function renderClip(req: ClipRequest): Clip {
   const category = req.category ?? Category.fishCrossing;
   const light = isUnderwater(category) ? 'water' : 'day';
   const frameRng = makeRng(req.seed * 13 + 1);
-  const base = makeRenderer(rng, req.nuisance ?? category, light, req.width, req.height, req.duration);
+  const base = makeRenderer(rng, req.nuisance ?? category, light, req.width, req.height, req.duration, rng, req.distractor, req.style);
   // One subject per visit, each crossing during its own span; world and nuisances are shared.
   const visits = req.visits.map((v) => ({ v, r: makeRenderer(makeRng(rng.int(1, 1e9)), category, light, req.width, req.height, v.end_s - v.start_s) }));
   const minPixels = Math.max(4, Math.round(req.width * req.height * 0.001));
