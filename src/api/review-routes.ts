@@ -8,11 +8,13 @@
  *   GET  /api/events/:id/preview/:kind/:pos   a preview image (kind frame|heat)
  *   GET  /api/media/:id                       the original file, with range requests
  *   GET  /api/deployments                     counts per deployment, verdict and decision
+ *   GET  /api/health                          camera problems per deployment (deployment-health.ts)
  *   POST /api/decisions {events:[id], decision, source, who?}
  *   POST /api/decisions/undo {who?}           undoes the latest batch not yet undone
  */
 import path from 'node:path';
 import type { ReviewQueries } from '../ledger/review-queries.js';
+import { deploymentsHealth } from '../pipeline/report.js';
 import { ApiErrorCode, HttpError, badRequest, json } from './api-errors.js';
 import { fileResponse } from './media-response.js';
 import { EVENT_ID_RE, eventIds, parseFilter, readJson, who } from './request-params.js';
@@ -65,6 +67,10 @@ export async function reviewRoute(req: Request, parts: string[], url: URL, l: Op
   if (what === 'deployments' && parts.length === 2) {
     only('GET');
     return json(q.summary());
+  }
+  if (what === 'health' && parts.length === 2) {
+    only('GET');
+    return json(deploymentsHealth(q.healthRows()));
   }
   if (what === 'decisions' && parts.length === 2) {
     only('POST');

@@ -3,6 +3,7 @@ import { parse, numberFlag } from './args.js';
 import { ExitCode, usageError } from './cli-errors.js';
 import { progressPrinter } from './progress-bar.js';
 import { DEFAULTS, scan, type ScanSummary } from '../pipeline/scan.js';
+import { ledgerHealth, type ReportDeployment } from '../pipeline/report.js';
 import { DEFAULT_EVENT_GAP_S } from '../pipeline/group-events.js';
 import os from 'node:os';
 
@@ -28,13 +29,15 @@ Options:
 
 Exit status: 0 done (files that failed are recorded as errors), 1 failed or stopped, 2 bad usage.`;
 
-export function formatSummary(s: ScanSummary): string {
+export function formatSummary(s: ScanSummary, health: readonly ReportDeployment[] = []): string {
   const v = s.verdicts;
+  const problems = health.flatMap((d) => d.health.map((f) => `  ${d.id}: ${f.message}`));
   return [
     `${s.stopped ? 'Stopped' : 'Scanned'} ${s.files} file(s) into ${s.events} event(s) in ${s.seconds.toFixed(1)} s (${s.analysed} screened now, ${s.skipped} unchanged and skipped).`,
     `Verdicts: ${v['likely-blank'] ?? 0} likely-blank, ${v.unsure ?? 0} unsure, ${v.motion ?? 0} motion.`,
     s.errors ? `${s.errors} file(s) could not be screened; they are listed with a reason in the report's "errors" and are never set aside.` : 'Every file could be read.',
     'Nothing was moved or deleted: likely-blank is a proposal for a person to confirm.',
+    ...(problems.length ? [`Camera problems (check these triggers before trusting their verdicts):`, ...problems] : health.length ? [`No camera problems found in ${health.length} deployment(s) (clock, lens, night lamp).`] : []),
     ...(s.stopped ? ['Run the same command again to continue where it stopped.'] : []),
   ].join('\n');
 }
@@ -78,7 +81,7 @@ export async function scanCommand(argv: string[]): Promise<number> {
       signal: controller.signal,
       onProgress: progressPrinter(json ? 'json' : process.stderr.isTTY ? 'bar' : 'quiet'),
     });
-    if (!json) console.log(formatSummary(summary));
+    if (!json) console.log(formatSummary(summary, ledgerHealth(values.ledger)));
     return summary.stopped ? ExitCode.failure : ExitCode.done;
   } finally {
     process.off('SIGINT', onSignal);

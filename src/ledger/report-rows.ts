@@ -48,3 +48,29 @@ export function reportErrors(db: Ledger): ReportErrorRow[] {
     .prepare<[], ReportErrorRow>('SELECT s.rel_path AS file, r.path AS root, s.code, s.message FROM scan_errors s JOIN roots r ON r.id = s.root_id ORDER BY r.path, s.rel_path')
     .all();
 }
+
+export interface HealthRow {
+  id: string;
+  deployment: string;
+  start_time: string;
+  start_sort_ms: number;
+  file: string;
+  light: 'colour' | 'infrared' | null;
+  scene: string | null;
+}
+
+/** Per analysed image event: what deployment-health.ts judges (capture time, first file, the
+ *  light of its middle file, the scene signature the analysis recorded). */
+export function healthRows(db: Ledger): HealthRow[] {
+  return db
+    .prepare<[], HealthRow>(
+      `SELECT e.id, e.deployment_id AS deployment, e.start_time, e.start_sort_ms,
+         (SELECT m.rel_path FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id ORDER BY em.position LIMIT 1) AS file,
+         (SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id AND em.position = (SELECT count(*) FROM event_media c WHERE c.event_id = e.id) / 2) AS light,
+         json_extract(a.detail, '$.scene') AS scene
+       FROM events e JOIN analyses a ON a.event_id = e.id
+       WHERE e.kind <> 'clip'
+       ORDER BY e.deployment_id, e.start_sort_ms, e.id`,
+    )
+    .all();
+}

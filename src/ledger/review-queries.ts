@@ -5,6 +5,7 @@
 import { randomUUID } from 'node:crypto';
 import type { EventCard, EventFilter } from '../shared/review-api.js';
 import type { Ledger } from './open-ledger.js';
+import { healthRows } from './report-rows.js';
 
 export type { EventCard, EventFilter };
 
@@ -105,6 +106,8 @@ export function createReviewQueries(db: Ledger) {
     previewPath: (eventId: string, kind: string, position: number) => previewPath.get(eventId, kind, position)?.path,
     mediaFile: (id: number) => mediaFile.get(id),
     summary: () => summary.all(),
+    /** What deployment health is judged from (report-rows.ts). */
+    healthRows: () => healthRows(db),
     /** Appends one decision per event (one batch, one transaction); unknown ids are returned, not written. */
     decide: db.transaction((ids: string[], decision: 'keep' | 'set-aside', source: string, who: string | null) => {
       const batch = randomUUID();

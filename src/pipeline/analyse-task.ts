@@ -11,6 +11,7 @@ import type { Blob } from '../kernels/components.js';
 import { detectDataStripInFrames, ignoreMask, widerStrip, type DataStrip } from '../kernels/data-strip.js';
 import type { RgbFrame } from '../kernels/frame.js';
 import { CLIP_MODEL, MOTION_MODEL } from '../kernels/model.js';
+import { sceneSignature } from '../kernels/scene-signature.js';
 import { eventFeatureRows, scoreEvent, verdictFor, FEATURE_NAMES, type VerdictName } from '../kernels/score.js';
 import { decodeImage } from '../media/decode-image.js';
 import { decodeVideo } from '../media/decode-video.js';
@@ -133,6 +134,8 @@ async function runImages(task: EventTask): Promise<TaskOutcome> {
       flow: best && a.trackFlows ? a.trackFlows[s.bestTrack] : undefined,
     },
     detail: {
+      // What the camera saw, for the deployment's health (deployment-health.ts): the middle frame.
+      scene: sceneSignature(frames[frames.length >> 1], mask),
       strip,
       // Which detection set the ignored rows: the event's own frames, the deployment's consensus, or both agreed.
       stripFrom: strip.top + strip.bottom === 0 ? null : own.top === strip.top && own.bottom === strip.bottom ? 'event' : 'deployment',

@@ -4,7 +4,10 @@
  * ones never change meaning. CSV gives one row per event with the same fields.
  */
 import { openLedger } from '../ledger/open-ledger.js';
-import { reportErrors, reportEvents } from '../ledger/report-rows.js';
+import { healthRows, reportErrors, reportEvents, type HealthRow } from '../ledger/report-rows.js';
+import { deploymentHealth } from '../kernels/deployment-health.js';
+import type { DeploymentHealth } from '../shared/health.js';
+import type { SceneSignature } from '../kernels/scene-signature.js';
 
 export interface ReportWindow {
   start_s: number;
@@ -26,9 +29,13 @@ export interface ReportEvent {
   root: string;
 }
 
+/** What went wrong with a deployment's camera (deployment-health.ts). */
+export type ReportDeployment = DeploymentHealth;
+
 export interface Report {
   schema: 'movesift.report/1';
   events: ReportEvent[];
+  deployments: ReportDeployment[];
   errors: Array<{ file: string; code: string; message: string; root: string }>;
 }
 
@@ -48,10 +55,43 @@ export function buildReport(ledger: string): Report {
       decision: r.decision,
       root: r.root,
     }));
-    return { schema: 'movesift.report/1', events, errors: reportErrors(db) };
+    return { schema: 'movesift.report/1', events, deployments: deploymentsHealth(healthRows(db)), errors: reportErrors(db) };
   } finally {
     db.close();
   }
+}
+
+/** Health of every deployment of a ledger (what `scan` prints at its end). */
+export function ledgerHealth(ledger: string): ReportDeployment[] {
+  const db = openLedger(ledger, { readonly: true });
+  try {
+    return deploymentsHealth(healthRows(db));
+  } finally {
+    db.close();
+  }
+}
+
+/** Health per deployment, in deployment order (every deployment with an analysed image event). */
+export function deploymentsHealth(rows: readonly HealthRow[]): ReportDeployment[] {
+  const by = new Map<string, HealthRow[]>();
+  for (const r of rows) {
+    const list = by.get(r.deployment);
+    if (list) list.push(r);
+    else by.set(r.deployment, [r]);
+  }
+  return [...by].map(([id, list]) => ({
+    id,
+    health: deploymentHealth(
+      list.map((r) => ({
+        id: r.id,
+        time: r.start_time,
+        sortMs: r.start_sort_ms,
+        file: r.file,
+        light: r.light === 'infrared' ? 'ir' : r.light === 'colour' ? 'day' : null,
+        scene: r.scene ? (JSON.parse(r.scene) as SceneSignature) : undefined,
+      })),
+    ),
+  }));
 }
 
 /** A cell that a spreadsheet would run as a formula (=, +, -, @, tab, CR) is prefixed with a quote. */

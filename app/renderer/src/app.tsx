@@ -21,6 +21,7 @@ import { StartScreen } from './features/start/components/start-screen';
 import { useScanProgress } from './features/start/hooks/use-scan-progress';
 import { ActPanel } from './features/act/components/act-panel';
 import { AuditView } from './features/audit/components/audit-view';
+import { CameraProblems, problemsOf, type Problem } from './shared/camera-problems';
 
 const SCORE_STEP = 0.05;
 
@@ -37,6 +38,7 @@ export function App({ initial }: { initial: SessionInfo }) {
   const [who, setWho] = useState(() => localStorage.getItem('movesift.who') ?? initial.user);
   const [message, setMessage] = useState<string>('Press ? for the keys.');
   const [deployments, setDeployments] = useState<string[]>([]);
+  const [problems, setProblems] = useState<Problem[]>([]);
   const geometry = useRef<GridGeometry>({ cols: 1, rowsInView: 1 });
   const detailActions = useRef<((a: Action) => boolean) | null>(null);
   const auditActions = useRef<((a: Action) => boolean) | null>(null);
@@ -47,6 +49,7 @@ export function App({ initial }: { initial: SessionInfo }) {
   useEffect(() => localStorage.setItem('movesift.who', who), [who]);
   useEffect(() => {
     if (session.ledger) void api.deployments().then((rows) => setDeployments([...new Set(rows.map((r) => r.deployment))].sort()));
+    if (session.ledger) void api.health().then((h) => setProblems(problemsOf(h)), () => setProblems([]));
   }, [session.ledger, scan?.status]);
   const scanStatus = scan?.status;
   useEffect(() => {
@@ -239,15 +242,18 @@ export function App({ initial }: { initial: SessionInfo }) {
   const current = pages.get(focus);
   return (
     <div className="app" data-mode={mode}>
-      <Toolbar ledgerName={session.name} filter={filter} total={pages.total} selected={selection.ids.size} heat={heat} scan={scan} onHelp={() => setHelp(true)} />
+      <div className="app-head">
+        <Toolbar ledgerName={session.name} filter={filter} total={pages.total} selected={selection.ids.size} heat={heat} scan={scan} onHelp={() => setHelp(true)} />
+        {view === 'grid' && <CameraProblems problems={problems} />}
+      </div>
       {view === 'grid' && (total > 0 || pages.total === null ? (
         <EventGrid pages={pages} focus={focus} selected={selection.ids} heat={heat} onPick={onPick} onOpen={onOpen} onGeometry={onGeometry} />
       ) : (
         <div className="empty-note">No event matches these filters. Press 0 for every verdict, d / n / p to cycle the other filters.</div>
       ))}
-      {view === 'audit' && <AuditView who={who} bindActions={bindAudit} renderEvent={(id, position) => <EventDetailView key={id} id={id} heat={heat} decision={undefined} position={position} bindActions={bindActions} />} />}
+      {view === 'audit' && <AuditView who={who} bindActions={bindAudit} renderEvent={(id, position) => <EventDetailView key={id} id={id} heat={heat} decision={undefined} position={position} problems={problems} bindActions={bindActions} />} />}
       {view === 'act' && <ActPanel who={who} initialTask={session.task} ask={ask} onChanged={() => pages.reload()} />}
-      {view === 'detail' && current && <EventDetailView id={current.id} heat={heat} decision={current.decision} position={`${count(focus + 1)} of ${count(total)}`} bindActions={bindActions} />}
+      {view === 'detail' && current && <EventDetailView id={current.id} heat={heat} decision={current.decision} position={`${count(focus + 1)} of ${count(total)}`} problems={problems} bindActions={bindActions} />}
       <footer className="status-line" data-testid="status-line" role="status">
         {pages.error ? `Could not load events: ${pages.error}` : message}
       </footer>

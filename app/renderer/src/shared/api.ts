@@ -4,6 +4,7 @@
  * (Electron). Errors arrive as {code, message} and are thrown as ApiFailure with that code.
  */
 import type { ApplyInfo, ApplyPlan, AuditReport, CalibrationResult, DecideResult, Decision, DeploymentCount, EventDetail, EventPage, ScanJobState, SessionInfo, TaskState, UndoResult } from '../../../../src/shared/review-api';
+import type { DeploymentHealth } from '../../../../src/shared/health';
 import type { ViewFilter } from './view-filter';
 
 export class ApiFailure extends Error {
@@ -54,6 +55,7 @@ export const api = {
   shownIds: (f: ViewFilter) => call<{ ids: string[]; verdicts: Record<string, number> }>(`api/events/ids?${filterQuery(f)}`),
   event: (id: string) => call<EventDetail>(`api/events/${id}`),
   deployments: () => call<DeploymentCount[]>('api/deployments'),
+  health: () => call<DeploymentHealth[]>('api/health'),
   decide: (events: string[], decision: Decision, source: 'single' | 'bulk', who: string) => call<DecideResult>('api/decisions', post({ events, decision, source, who })),
   undo: (who: string) => call<UndoResult>('api/decisions/undo', post({ who })),
   previewUrl: (id: string, kind: 'frame' | 'heat', position: number) => `api/events/${id}/preview/${kind}/${position}`,

@@ -5,6 +5,7 @@ import { DECISION_LABEL, VERDICT_LABEL, shortTime } from '../../../shared/format
 import { useEventDetail } from '../hooks/use-event-detail';
 import { BurstView } from './burst-view';
 import { ClipView } from './clip-view';
+import { EventProblems, type Problem } from '../../../shared/camera-problems';
 
 interface Props {
   id: string;
@@ -12,10 +13,12 @@ interface Props {
   position: string;
   /** The decision as the grid knows it now (it changes while the event is open). */
   decision: Decision | null | undefined;
+  /** Camera problems of every deployment; those that concern this trigger are shown. */
+  problems: readonly Problem[];
   bindActions(fn: ((a: Action) => boolean) | null): void;
 }
 
-export function EventDetailView({ id, heat, position, decision: current, bindActions }: Props) {
+export function EventDetailView({ id, heat, position, decision: current, problems, bindActions }: Props) {
   const { event, error } = useEventDetail(id);
   if (error) return <div className="detail detail-error">This event could not be loaded: {error}</div>;
   if (!event) return <div className="detail detail-loading">Loading…</div>;
@@ -31,6 +34,7 @@ export function EventDetailView({ id, heat, position, decision: current, bindAct
         <span>{shortTime(event.start)}</span>
         <span className="card-dim">engine {event.engine_version}</span>
       </div>
+      <EventProblems problems={problems.filter((p) => p.eventIds.includes(event.id))} />
       {event.kind === 'clip' ? <ClipView key={event.id} event={event} bindActions={bindActions} /> : <BurstView key={event.id} event={event} heat={heat} bindActions={bindActions} />}
     </div>
   );

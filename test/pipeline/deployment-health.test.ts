@@ -1,0 +1,46 @@
+/**
+ * Deployment health through the real command line, on a card with a fogged lens for two
+ * triggers and a clock reset on the last (test/helpers/faulty-card.ts): `scan` names both at its
+ * end and `report` lists them under the deployment; the untouched camera stays without findings.
+ */
+import { readdirSync } from 'node:fs';
+import path from 'node:path';
+import { beforeAll, describe, expect, it } from 'vitest';
+import { runCli, tempDir } from '../helpers/cli.js';
+import { writeFaultyCard } from '../helpers/faulty-card.js';
+import type { Report } from '../../src/pipeline/report.js';
+
+describe('deployment health of a scanned card', () => {
+  let report: Report;
+  let stdout: string;
+  beforeAll(async () => {
+    const dir = tempDir();
+    await writeFaultyCard(dir);
+    expect(readdirSync(path.join(dir, 'ridge-trail'))).toHaveLength(32);
+    const ledger = path.join(tempDir(), 'health.ledger');
+    const scan = runCli(['scan', dir, '--ledger', ledger]);
+    expect(scan.code, scan.stderr).toBe(0);
+    stdout = scan.stdout;
+    report = JSON.parse(runCli(['report', ledger, '--format', 'json']).stdout) as Report;
+  }, 120_000);
+
+  it('report lists the fogged lens and the clock reset under the card, nothing under the other camera', () => {
+    const ridge = report.deployments.find((d) => d.id === 'ridge-trail')!;
+    const creek = report.deployments.find((d) => d.id === 'creek-bend')!;
+    console.log(JSON.stringify(ridge.health, null, 1));
+    expect(creek.health).toEqual([]);
+    expect(ridge.health.map((f) => f.code).sort()).toEqual(['clock-backwards', 'clock-implausible', 'lens-obscured']);
+    const fog = ridge.health.find((f) => f.code === 'lens-obscured')!;
+    expect(fog.events).toBe(2);
+    const byId = new Map(report.events.map((e) => [e.id, e]));
+    expect(byId.get(fog.from)!.files[0]).toBe('ridge-trail/IMG_0007.JPG');
+    expect(byId.get(fog.to)!.files[0]).toBe('ridge-trail/IMG_0010.JPG');
+    expect(ridge.health.find((f) => f.code === 'clock-backwards')!.message).toMatch(/went back 25\.4 years between ridge-trail\/IMG_0027\.JPG .* ridge-trail\/IMG_0030\.JPG/);
+  });
+
+  it('scan names them at its end', () => {
+    expect(stdout).toMatch(/Camera problems/);
+    expect(stdout).toMatch(/ridge-trail: 2 day triggers .* far less detail/);
+    expect(stdout).toMatch(/ridge-trail: 1 trigger\(s\) carry a capture time before 2001/);
+  });
+});
