@@ -37,6 +37,8 @@ import { sampleSizeForZeroMisses } from '../shared/stats/binomial.js';
 import { ApiErrorCode, HttpError, badRequest, json } from './api-errors.js';
 import { EVENT_ID_RE, readJson, userPath, who } from './request-params.js';
 import type { TaskJobs } from './task-jobs.js';
+import { deploymentsHealth } from '../pipeline/report.js';
+import { healthRows } from '../ledger/report-rows.js';
 
 function num(v: unknown, name: string, lo: number, hi: number, integer = false): number {
   const x = typeof v === 'string' && v !== '' ? Number(v) : v;
@@ -145,7 +147,7 @@ export async function actionRoute(req: Request, parts: string[], url: URL, ledge
       const table = optional(b.deployments, () => userPath('deployments', b.deployments));
       const facts = table ? new Map([...readDeploymentsTable(table).values()].map((f) => [f.deploymentID, f])) : undefined;
       const pkg = buildCamtrap(exportDeployments(db), exportMedia(db), exportEvents(db), {
-        utcOffset: offset, facts, projectTitle: typeof b.projectTitle === 'string' && b.projectTitle ? b.projectTitle.slice(0, 200) : path.basename(ledger, path.extname(ledger)),
+        utcOffset: offset, facts, health: deploymentsHealth(healthRows(db)), projectTitle: typeof b.projectTitle === 'string' && b.projectTitle ? b.projectTitle.slice(0, 200) : path.basename(ledger, path.extname(ledger)),
         who: who(b.who) ?? 'unknown', created: new Date().toISOString().replace(/\.\d+Z$/, 'Z'), engineVersion: ENGINE_VERSION,
       });
       mkdirSync(out, { recursive: true });

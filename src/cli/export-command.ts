@@ -10,6 +10,8 @@ import { mediaCsv } from '../pipeline/export-csv.js';
 import { buildCamtrap } from '../pipeline/export-camtrap.js';
 import { readDeploymentsTable, type DeploymentFacts } from '../pipeline/deployments-table.js';
 import { ENGINE_VERSION } from '../pipeline/engine-version.js';
+import { deploymentsHealth } from '../pipeline/report.js';
+import { healthRows } from '../ledger/report-rows.js';
 
 export const EXPORT_HELP = `Usage: movesift export <ledger> --format csv|camtrap-dp --out <path> [options]
 
@@ -53,7 +55,7 @@ export async function exportCommand(argv: string[]): Promise<number> {
     let facts: Map<string, DeploymentFacts> | undefined;
     if (values.deployments) facts = new Map([...readDeploymentsTable(values.deployments).values()].map((f) => [f.deploymentID, f]));
     const pkg = buildCamtrap(exportDeployments(db), exportMedia(db), exportEvents(db), {
-      utcOffset: offset, facts, projectTitle: values['project-title'] ?? path.basename(ledger, path.extname(ledger)), who: values.who ?? os.userInfo().username,
+      utcOffset: offset, facts, health: deploymentsHealth(healthRows(db)), projectTitle: values['project-title'] ?? path.basename(ledger, path.extname(ledger)), who: values.who ?? os.userInfo().username,
       created: new Date().toISOString().replace(/\.\d+Z$/, 'Z'), engineVersion: ENGINE_VERSION,
     });
     (pkg.descriptor.project as { samplingDesign: string }).samplingDesign = design;

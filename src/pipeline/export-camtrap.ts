@@ -15,6 +15,7 @@ import path from 'node:path';
 import type { ExportDeploymentRow, ExportEventRow, ExportMediaRow } from '../ledger/export-rows.js';
 import { MovesiftError } from '../shared/errors.js';
 import type { DeploymentFacts } from './deployments-table.js';
+import type { DeploymentHealth } from '../shared/health.js';
 import { rawCsvCell } from './report.js';
 
 export const CAMTRAP_VERSION = '1.0.2';
@@ -26,6 +27,8 @@ export interface CamtrapOptions {
   utcOffset?: string;
   /** Facts that fill in deployments (coordinates, names), by deploymentID. */
   facts?: Map<string, DeploymentFacts>;
+  /** Camera problems found per deployment (deployment-health.ts), written as notes. */
+  health?: readonly DeploymentHealth[];
   projectTitle: string;
   who: string;
   created: string;
@@ -73,12 +76,18 @@ export function buildCamtrap(deps: ExportDeploymentRow[], media: ExportMediaRow[
     for (let k = 2; [...labels.values()].includes(label); k++) label = `${path.basename(root)}-${k}`;
     labels.set(root, label);
   }
+  const health = new Map((o.health ?? []).map((h) => [h.id, h.health]));
   const depRows = deps.map((d) => {
     const f = o.facts?.get(d.id);
     const lat = d.latitude ?? f?.latitude ?? null;
     const lon = d.longitude ?? f?.longitude ?? null;
     if (lat === null || lon === null) missing.push(`${d.id}: no latitude and longitude (give a deployments table with --deployments)`);
-    return { deploymentID: d.id, locationName: d.location_name ?? f?.locationName ?? null, latitude: lat, longitude: lon, deploymentStart: ts(d.first_capture ?? '', d.id, 'first capture'), deploymentEnd: ts(d.last_capture ?? '', d.id, 'last capture'), cameraID: d.camera_id ?? f?.cameraID ?? null, cameraModel: d.camera_model ?? f?.cameraModel ?? null };
+    // A clock that was reset is what Camtrap DP's timestampIssues is for; every finding goes to
+    // the deployment's comments. No finding leaves both empty (the screener cannot vouch for a clock).
+    const found = health.get(d.id) ?? [];
+    const clock = found.some((h) => h.code === 'clock-implausible' || h.code === 'clock-backwards');
+    const notes = found.length ? `Camera problems found by Movesift: ${found.map((h) => h.message).join('; ')}` : null;
+    return { deploymentID: d.id, locationName: d.location_name ?? f?.locationName ?? null, latitude: lat, longitude: lon, deploymentStart: ts(d.first_capture ?? '', d.id, 'first capture'), deploymentEnd: ts(d.last_capture ?? '', d.id, 'last capture'), cameraID: d.camera_id ?? f?.cameraID ?? null, cameraModel: d.camera_model ?? f?.cameraModel ?? null, timestampIssues: clock ? true : null, deploymentComments: notes };
   });
   const mediaRows = media.map((m) => ({ mediaID: `m${m.media_id}`, deploymentID: m.deployment_id, captureMethod: m.kind === 'image' ? 'activityDetection' : null, timestamp: ts(m.capture_time, m.deployment_id, 'capture time'), filePath: `${labels.get(m.root)}/${m.rel_path}`, filePublic: false, fileName: path.basename(m.rel_path), fileMediatype: mediatype(m) }));
   const obsRows = events.map((e) => {

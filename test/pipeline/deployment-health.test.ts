@@ -3,7 +3,7 @@
  * triggers and a clock reset on the last (test/helpers/faulty-card.ts): `scan` names both at its
  * end and `report` lists them under the deployment; the untouched camera stays without findings.
  */
-import { readdirSync } from 'node:fs';
+import { readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { runCli, tempDir } from '../helpers/cli.js';
@@ -13,11 +13,13 @@ import type { Report } from '../../src/pipeline/report.js';
 describe('deployment health of a scanned card', () => {
   let report: Report;
   let stdout: string;
+  let ledger: string;
+  let dir: string;
   beforeAll(async () => {
-    const dir = tempDir();
+    dir = tempDir();
     await writeFaultyCard(dir);
     expect(readdirSync(path.join(dir, 'ridge-trail'))).toHaveLength(32);
-    const ledger = path.join(tempDir(), 'health.ledger');
+    ledger = path.join(tempDir(), 'health.ledger');
     const scan = runCli(['scan', dir, '--ledger', ledger]);
     expect(scan.code, scan.stderr).toBe(0);
     stdout = scan.stdout;
@@ -42,5 +44,24 @@ describe('deployment health of a scanned card', () => {
     expect(stdout).toMatch(/Camera problems/);
     expect(stdout).toMatch(/ridge-trail: 2 day triggers .* far less detail/);
     expect(stdout).toMatch(/ridge-trail: 1 trigger\(s\) carry a capture time before 2001/);
+  });
+
+  it('a Camtrap DP export notes them under the deployment: timestampIssues for the clock, the findings as comments', () => {
+    const out = path.join(tempDir(), 'package');
+    const table = path.join(tempDir(), 'deployments.csv');
+    writeFileSync(table, 'folder,deploymentID,latitude,longitude\nridge-trail,ridge-trail,51.05,3.72\ncreek-bend,creek-bend,51.06,3.71\n');
+    const r = runCli(['export', ledger, '--format', 'camtrap-dp', '--out', out, '--deployments', table, '--utc-offset', '+02:00']);
+    expect(r.code, r.stderr).toBe(0);
+    const [head, ...rows] = readFileSync(path.join(out, 'deployments.csv'), 'utf8').trim().split('\n');
+    const cols = head.split(',');
+    const cell = (id: string, name: string) => {
+      const row = rows.find((x) => x.startsWith(`${id},`))!;
+      // deploymentComments is the last column and may be quoted (it holds commas).
+      return name === 'deploymentComments' ? row.slice(row.indexOf(',"') + 1) : row.split(',')[cols.indexOf(name)];
+    };
+    expect(cell('ridge-trail', 'timestampIssues')).toBe('true');
+    expect(cell('ridge-trail', 'deploymentComments')).toMatch(/^"Camera problems found by Movesift: .*fogged, wet or covered/);
+    expect(cell('creek-bend', 'timestampIssues')).toBe('');
+    expect(rows.find((x) => x.startsWith('creek-bend,'))!.endsWith(',')).toBe(true); // no comments
   });
 });
