@@ -56,7 +56,10 @@ export interface HealthRow {
   start_sort_ms: number;
   file: string;
   light: 'colour' | 'infrared' | null;
+  /** The middle file (what other triggers name as their neighbour). */
+  mid_file: string | null;
   scene: string | null;
+  neighbours: string | null;
 }
 
 /** Per analysed image event: what deployment-health.ts judges (capture time, first file, the
@@ -67,7 +70,8 @@ export function healthRows(db: Ledger): HealthRow[] {
       `SELECT e.id, e.deployment_id AS deployment, e.start_time, e.start_sort_ms,
          (SELECT m.rel_path FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id ORDER BY em.position LIMIT 1) AS file,
          (SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id AND em.position = (SELECT count(*) FROM event_media c WHERE c.event_id = e.id) / 2) AS light,
-         json_extract(a.detail, '$.scene') AS scene
+         (SELECT m.rel_path FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id AND em.position = (SELECT count(*) FROM event_media c WHERE c.event_id = e.id) / 2) AS mid_file,
+         json_extract(a.detail, '$.scene') AS scene, json_extract(a.detail, '$.neighbours') AS neighbours
        FROM events e JOIN analyses a ON a.event_id = e.id
        WHERE e.kind <> 'clip'
        ORDER BY e.deployment_id, e.start_sort_ms, e.id`,

@@ -103,9 +103,13 @@ async function runImages(task: EventTask): Promise<TaskOutcome> {
   const at = kept.indexOf(middle);
   if (at >= 0) rememberNeighbour(task.files[middle], task.width, task.height, frames[at]);
   const neighbours: RgbFrame[] = [];
+  const neighbourFiles: string[] = [];
   for (const n of task.neighbours) {
     const fr = await decodeNeighbour(n, task.width, task.height);
-    if (fr) neighbours.push(fr);
+    if (fr) {
+      neighbours.push(fr);
+      neighbourFiles.push(n.display);
+    }
   }
   const own = detectDataStripInFrames(frames.length >= 3 ? frames : [...frames, ...neighbours]);
   const strip = widerStrip(own, task.deploymentStrip);
@@ -142,7 +146,9 @@ async function runImages(task: EventTask): Promise<TaskOutcome> {
       // Neighbours offered and how each fitted (kept ones make the deployment background).
       background: neighbours.length,
       deployment: a.deploymentBackground,
-      neighbours: (a.neighbourFits ?? []).map((f) => ({ kept: f.kept, disagreement: round(f.disagreement, 2), shift: { dx: round(f.shift.dx, 2), dy: round(f.shift.dy, 2) } })),
+      // Each neighbour by its file (another trigger's middle file): deployment-health.ts reads
+      // a camera that moved from which neighbours stopped agreeing.
+      neighbours: (a.neighbourFits ?? []).map((f, k) => ({ file: neighbourFiles[k], kept: f.kept, compensated: f.compensated, disagreement: round(f.disagreement, 2), shift: { dx: round(f.shift.dx, 2), dy: round(f.shift.dy, 2) } })),
       movingLight: a.context.movingLight,
       frames: a.frames.map((f, k) => ({
         position: kept[k],

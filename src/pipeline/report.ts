@@ -5,7 +5,7 @@
  */
 import { openLedger } from '../ledger/open-ledger.js';
 import { healthRows, reportErrors, reportEvents, type HealthRow } from '../ledger/report-rows.js';
-import { deploymentHealth } from '../kernels/deployment-health.js';
+import { deploymentHealth, type NeighbourRecord } from '../kernels/deployment-health.js';
 import type { DeploymentHealth } from '../shared/health.js';
 import type { SceneSignature } from '../kernels/scene-signature.js';
 
@@ -89,6 +89,8 @@ export function deploymentsHealth(rows: readonly HealthRow[]): ReportDeployment[
         file: r.file,
         light: r.light === 'infrared' ? 'ir' : r.light === 'colour' ? 'day' : null,
         scene: r.scene ? (JSON.parse(r.scene) as SceneSignature) : undefined,
+        midFile: r.mid_file ?? undefined,
+        neighbours: r.neighbours ? (JSON.parse(r.neighbours) as NeighbourRecord[]).filter((n) => typeof n.file === 'string') : undefined,
       })),
     ),
   }));

@@ -1,6 +1,6 @@
 /** Deployment health findings (src/kernels/deployment-health.ts): the report's
  *  `deployments[].health`, `GET /api/health` and the review app share this shape. */
-export type HealthCode = 'clock-implausible' | 'clock-backwards' | 'lens-obscured' | 'night-dark';
+export type HealthCode = 'clock-implausible' | 'clock-backwards' | 'view-changed' | 'lens-obscured' | 'night-dark';
 
 export interface HealthFinding {
   code: HealthCode;

@@ -28,3 +28,19 @@ export async function writeFaultyCard(dir: string): Promise<void> {
   for (let n = 7; n <= 12; n++) await rewrite(img(card, n), 8);
   for (let n = 30; n <= 32; n++) await rewrite(img(card, n), null, Date.UTC(2000, 0, 1, 0, 0, n - 30));
 }
+
+/** The sample's day camera knocked part way through: from IMG_0020 on, every frame shows the
+ *  view shifted (12% cut from the left and the top, scaled back to the frame), as a camera turned
+ *  a little and tipped sees it; the other camera beside it, untouched. */
+export async function writeBumpedCard(dir: string): Promise<void> {
+  cpSync(path.join(ROOT, 'sample-media/ridge-trail'), path.join(dir, 'ridge-trail'), { recursive: true });
+  cpSync(path.join(ROOT, 'sample-media/creek-bend'), path.join(dir, 'creek-bend'), { recursive: true });
+  const card = path.join(dir, 'ridge-trail');
+  for (let n = 20; n <= 32; n++) {
+    const file = img(card, n);
+    const info = await readImageInfo(file, path.basename(file), 0);
+    const left = Math.round(0.12 * info.width), top = Math.round(0.12 * info.height);
+    const { data, info: raw } = await sharp(file).extract({ left, top, width: info.width - left, height: info.height - top }).resize(info.width, info.height).raw().toBuffer({ resolveWithObject: true });
+    await writeJpeg(file, { width: raw.width, height: raw.height, channels: 3, data: new Uint8Array(data) }, info.capture.sortMs, 85, 'Health Test');
+  }
+}

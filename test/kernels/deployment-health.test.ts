@@ -81,6 +81,35 @@ describe('deployment health', () => {
     expect(f[1].message).toMatch(/went back 25\.5 years between DCIM\/IMG_0022.JPG/);
   });
 
+  // Neighbour records as the deployment backgrounds leave them: each trigger compared with the
+  // middle files of the two before and the two after it.
+  const withNeighbours = (d: HealthInput[], fits: (i: number, j: number) => { kept: boolean; dx: number }): HealthInput[] =>
+    d.map((e, i) => ({
+      ...e,
+      midFile: e.file,
+      neighbours: [i - 1, i + 1, i - 2, i + 2].filter((j) => j >= 0 && j < d.length).map((j) => {
+        const f = fits(i, j);
+        return { file: d[j].file, kept: f.kept, disagreement: f.kept ? 1 + 0.1 * Math.sin(i + j) : 6, compensated: f.dx !== 0, shift: { dx: f.dx, dy: 0 } };
+      }),
+    }));
+
+  it('a camera knocked between two triggers: neighbours across disagree, those on each side agree', () => {
+    const moved = (i: number, j: number) => (i < 14) !== (j < 14);
+    const dropped = withNeighbours(day(24), (i, j) => ({ kept: !moved(i, j), dx: 0 }));
+    expect(codes(deploymentHealth(dropped))).toEqual(['view-changed e14-e23']);
+    const f = deploymentHealth(dropped);
+    expect(codes(f)).toEqual(['view-changed e14-e23']);
+    expect(f[0].message).toMatch(/between DCIM\/IMG_0014.JPG .* and DCIM\/IMG_0015.JPG/);
+    // Two odd triggers in a row (a passing cloud over both) are no change of view either.
+    const pair = withNeighbours(day(24), (i, j) => ({ kept: !([9, 10].includes(i) || [9, 10].includes(j)), dx: 0 }));
+    expect(deploymentHealth(pair)).toEqual([]);
+  });
+
+  it('one odd trigger (a cloud shadow that no neighbour fits) is no change of view', () => {
+    const d = withNeighbours(day(24), (i, j) => ({ kept: i !== 9 && j !== 9, dx: 0 }));
+    expect(deploymentHealth(d)).toEqual([]);
+  });
+
   it('judges a trigger without a signature (an older ledger) by its time only', () => {
     const d = day(8).map((e) => ({ ...e, scene: undefined }));
     expect(deploymentHealth(d)).toEqual([]);

@@ -7,7 +7,7 @@ import { readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { runCli, tempDir } from '../helpers/cli.js';
-import { writeFaultyCard } from '../helpers/faulty-card.js';
+import { writeBumpedCard, writeFaultyCard } from '../helpers/faulty-card.js';
 import type { Report } from '../../src/pipeline/report.js';
 
 describe('deployment health of a scanned card', () => {
@@ -65,3 +65,21 @@ describe('deployment health of a scanned card', () => {
     expect(rows.find((x) => x.startsWith('creek-bend,'))!.endsWith(',')).toBe(true); // no comments
   });
 });
+
+describe('a camera knocked part way through a deployment', () => {
+  it('report names the change of view at the first trigger after it, and nothing in the other camera', async () => {
+    const dir = tempDir();
+    await writeBumpedCard(dir);
+    const ledger = path.join(tempDir(), 'bumped.ledger');
+    expect(runCli(['scan', dir, '--ledger', ledger]).code).toBe(0);
+    const report = JSON.parse(runCli(['report', ledger, '--format', 'json']).stdout) as Report;
+    const ridge = report.deployments.find((d) => d.id === 'ridge-trail')!;
+    console.log(JSON.stringify(ridge.health, null, 1));
+    expect(report.deployments.find((d) => d.id === 'creek-bend')!.health).toEqual([]);
+    expect(ridge.health.map((f) => f.code)).toEqual(['view-changed']);
+    const first = report.events.find((e) => e.id === ridge.health[0].from)!;
+    expect(first.files[0]).toBe('ridge-trail/IMG_0020.JPG');
+    expect(ridge.health[0].message).toMatch(/the view changed between ridge-trail\/IMG_0017\.JPG .* and ridge-trail\/IMG_0020\.JPG/);
+  }, 120_000);
+});
+
