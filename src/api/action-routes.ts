@@ -15,11 +15,11 @@
  *   GET  /api/audits/:id                       the report, with its items and their answers
  *   POST /api/audits/:id/answers {event, animal, who?}
  *   POST /api/calibrate {recall, apply?, who?}
- *   POST /api/export {format, out, utcOffset?, deployments?, projectTitle?, who?}
+ *   POST /api/export {format, out, utcOffset?, deployments?, projectTitle?, who?, force?}
  *   POST /api/cut {out, exact?}                start cutting activity windows (task)
  */
 import path from 'node:path';
-import { mkdirSync, renameSync, writeFileSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
 import { openLedger } from '../ledger/open-ledger.js';
 import { createMoveStore } from '../ledger/move-store.js';
 import { createAuditStore } from '../ledger/audit-store.js';
@@ -29,7 +29,8 @@ import { undoApply } from '../pipeline/undo-apply.js';
 import { answerAudit, drawAudit, loadAuditReport } from '../pipeline/audit.js';
 import { calibrate } from '../pipeline/calibrate.js';
 import { mediaCsv } from '../pipeline/export-csv.js';
-import { buildCamtrap } from '../pipeline/export-camtrap.js';
+import { buildCamtrap, writePackage } from '../pipeline/export-camtrap.js';
+import { checkOutput, writeOutput } from '../pipeline/output-guard.js';
 import { readDeploymentsTable } from '../pipeline/deployments-table.js';
 import { cutWindows } from '../pipeline/cut-windows.js';
 import { ENGINE_VERSION } from '../pipeline/engine-version.js';
@@ -46,11 +47,6 @@ function num(v: unknown, name: string, lo: number, hi: number, integer = false):
   return x;
 }
 const optional = <T>(v: unknown, f: () => T): T | undefined => (v === undefined || v === null || v === '' ? undefined : f());
-
-function writeAtomically(file: string, text: string): void {
-  writeFileSync(`${file}.part`, text);
-  renameSync(`${file}.part`, file);
-}
 
 export async function actionRoute(req: Request, parts: string[], url: URL, ledger: string, tasks: TaskJobs, only: (m: string) => void): Promise<Response | undefined> {
   const [, what, id, sub] = parts;
@@ -137,11 +133,14 @@ export async function actionRoute(req: Request, parts: string[], url: URL, ledge
       return b.utcOffset;
     });
     const db = openLedger(ledger);
+    // Replacing an earlier export is asked for in so many words; a ledger or a medium never is.
+    const guard = { ledger, db, force: b.force === true };
     try {
       if (b.format === 'csv') {
         const rows = exportMedia(db);
+        checkOutput(out, guard);
         mkdirSync(path.dirname(out), { recursive: true });
-        writeAtomically(out, mediaCsv(rows));
+        writeOutput(out, mediaCsv(rows), guard);
         return json({ format: 'csv', out, rows: rows.length });
       }
       const table = optional(b.deployments, () => userPath('deployments', b.deployments));
@@ -150,10 +149,7 @@ export async function actionRoute(req: Request, parts: string[], url: URL, ledge
         utcOffset: offset, facts, health: deploymentsHealth(healthRows(db)), projectTitle: typeof b.projectTitle === 'string' && b.projectTitle ? b.projectTitle.slice(0, 200) : path.basename(ledger, path.extname(ledger)),
         who: who(b.who) ?? 'unknown', created: new Date().toISOString().replace(/\.\d+Z$/, 'Z'), engineVersion: ENGINE_VERSION,
       });
-      mkdirSync(out, { recursive: true });
-      writeAtomically(path.join(out, 'datapackage.json'), JSON.stringify(pkg.descriptor, null, 2) + '\n');
-      for (const [name, text] of Object.entries(pkg.tables)) writeAtomically(path.join(out, `${name}.csv`), text);
-      return json({ format: 'camtrap-dp', out, files: ['datapackage.json', ...Object.keys(pkg.tables).map((n) => `${n}.csv`)] });
+      return json({ format: 'camtrap-dp', out, files: writePackage(out, pkg.descriptor, pkg.tables, guard) });
     } finally {
       db.close();
     }

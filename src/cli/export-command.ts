@@ -1,5 +1,5 @@
 /** `movesift export <ledger> --format csv|camtrap-dp --out <path>`. */
-import { mkdirSync, renameSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, statSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { parse } from './args.js';
@@ -7,7 +7,8 @@ import { ExitCode, usageError } from './cli-errors.js';
 import { openLedger } from '../ledger/open-ledger.js';
 import { exportDeployments, exportEvents, exportMedia } from '../ledger/export-rows.js';
 import { mediaCsv } from '../pipeline/export-csv.js';
-import { buildCamtrap } from '../pipeline/export-camtrap.js';
+import { buildCamtrap, writePackage } from '../pipeline/export-camtrap.js';
+import { writeOutput } from '../pipeline/output-guard.js';
 import { readDeploymentsTable, type DeploymentFacts } from '../pipeline/deployments-table.js';
 import { ENGINE_VERSION } from '../pipeline/engine-version.js';
 import { deploymentsHealth } from '../pipeline/report.js';
@@ -29,11 +30,14 @@ Options for camtrap-dp:
   --sampling-design <d>   Camtrap DP samplingDesign                           default: opportunistic
   --who <name>            the contributor                                     default: the user name
 
-The export refuses, and lists what is missing, rather than write a package that is not valid.`;
+  --force                 replace files of an earlier export (never a ledger or a screened medium)
+
+The export refuses, and lists what is missing, rather than write a package that is not valid.
+It never replaces an existing file unless --force is given.`;
 
 export async function exportCommand(argv: string[]): Promise<number> {
-  const { values, positionals } = parse<{ format?: string; out?: string; deployments?: string; 'utc-offset'?: string; 'project-title'?: string; 'sampling-design'?: string; who?: string }>(argv, {
-    format: { type: 'string' }, out: { type: 'string' }, deployments: { type: 'string' }, 'utc-offset': { type: 'string' }, 'project-title': { type: 'string' }, 'sampling-design': { type: 'string' }, who: { type: 'string' },
+  const { values, positionals } = parse<{ format?: string; out?: string; force?: boolean; deployments?: string; 'utc-offset'?: string; 'project-title'?: string; 'sampling-design'?: string; who?: string }>(argv, {
+    format: { type: 'string' }, out: { type: 'string' }, force: { type: 'boolean' }, deployments: { type: 'string' }, 'utc-offset': { type: 'string' }, 'project-title': { type: 'string' }, 'sampling-design': { type: 'string' }, who: { type: 'string' },
   }, 'export');
   if (values.help) return console.log(EXPORT_HELP), ExitCode.done;
   if (positionals.length !== 1) throw usageError('export: give exactly one ledger. See `movesift export --help`.');
@@ -45,10 +49,11 @@ export async function exportCommand(argv: string[]): Promise<number> {
   if (!['simpleRandom', 'systematicRandom', 'clusteredRandom', 'experimental', 'targeted', 'opportunistic'].includes(design)) throw usageError(`--sampling-design: wanted one of Camtrap DP's values (simpleRandom, systematicRandom, clusteredRandom, experimental, targeted, opportunistic), got ${JSON.stringify(design)}`);
   const ledger = positionals[0];
   const db = openLedger(ledger);
+  const guard = { ledger, db, force: !!values.force };
   try {
     if (values.format === 'csv') {
       const rows = exportMedia(db);
-      writeAtomically(values.out, mediaCsv(rows));
+      writeOutput(values.out, mediaCsv(rows), guard);
       console.log(`Wrote ${rows.length} media row(s) to ${values.out}.`);
       return ExitCode.done;
     }
@@ -59,17 +64,10 @@ export async function exportCommand(argv: string[]): Promise<number> {
       created: new Date().toISOString().replace(/\.\d+Z$/, 'Z'), engineVersion: ENGINE_VERSION,
     });
     (pkg.descriptor.project as { samplingDesign: string }).samplingDesign = design;
-    mkdirSync(values.out, { recursive: true });
-    writeAtomically(path.join(values.out, 'datapackage.json'), JSON.stringify(pkg.descriptor, null, 2) + '\n');
-    for (const [name, text] of Object.entries(pkg.tables)) writeAtomically(path.join(values.out, `${name}.csv`), text);
+    writePackage(values.out, pkg.descriptor, pkg.tables, guard);
     console.log(`Wrote a Camtrap DP 1.0.2 package to ${values.out} (${Object.keys(pkg.tables).join(', ')}).`);
     return ExitCode.done;
   } finally {
     db.close();
   }
-}
-
-function writeAtomically(file: string, text: string): void {
-  writeFileSync(`${file}.part`, text);
-  renameSync(`${file}.part`, file);
 }

@@ -1,5 +1,6 @@
 /** `movesift report <ledger> [--format json|csv] [--out <file>]`. */
-import { writeFileSync, renameSync } from 'node:fs';
+import { openLedger } from '../ledger/open-ledger.js';
+import { writeOutput } from '../pipeline/output-guard.js';
 import { parse } from './args.js';
 import { ExitCode, usageError } from './cli-errors.js';
 import { buildReport, reportCsv } from '../pipeline/report.js';
@@ -12,11 +13,12 @@ movesift.report/1; CSV has one row per event).
 
 Options:
   --format json|csv   default json
-  --out <file>        write to a file instead of stdout
+  --out <file>        write to a file instead of stdout (a new file; see --force)
+  --force             replace an existing file (never a ledger or a screened medium)
   -h, --help          this text`;
 
 export async function reportCommand(argv: string[]): Promise<number> {
-  const { values, positionals } = parse<{ format?: string; out?: string }>(argv, { format: { type: 'string' }, out: { type: 'string' } }, 'report');
+  const { values, positionals } = parse<{ format?: string; out?: string; force?: boolean }>(argv, { format: { type: 'string' }, out: { type: 'string' }, force: { type: 'boolean' } }, 'report');
   if (values.help) {
     console.log(REPORT_HELP);
     return ExitCode.done;
@@ -27,8 +29,12 @@ export async function reportCommand(argv: string[]): Promise<number> {
   const r = buildReport(positionals[0]);
   const text = format === 'json' ? JSON.stringify(r, null, 1) + '\n' : reportCsv(r);
   if (values.out) {
-    writeFileSync(`${values.out}.part`, text);
-    renameSync(`${values.out}.part`, values.out);
+    const db = openLedger(positionals[0], { readonly: true });
+    try {
+      writeOutput(values.out, text, { ledger: positionals[0], db, force: !!values.force });
+    } finally {
+      db.close();
+    }
   } else process.stdout.write(text);
   return ExitCode.done;
 }

@@ -108,3 +108,20 @@ export function clipWindows(db: Ledger): ClipWindowRow[] {
     )
     .all();
 }
+
+/** Whether a file (as a root's path and a path below it) is a medium this ledger screened, or
+ *  one an apply moved into a set-aside folder. */
+export function isLedgerMedium(db: Ledger, root: string, rel: string): boolean {
+  const screened = db.prepare<[string, string], { n: number }>('SELECT count(*) AS n FROM media m JOIN roots r ON r.id = m.root_id WHERE r.path = ? AND m.rel_path = ?').get(root, rel);
+  return (screened?.n ?? 0) > 0;
+}
+
+/** Every scanned folder of the ledger. */
+export function ledgerRoots(db: Ledger): string[] {
+  return db.prepare<[], { path: string }>('SELECT path FROM roots').all().map((r) => r.path);
+}
+
+/** Every place an apply moved a medium to (absolute paths). */
+export function setAsidePaths(db: Ledger): string[] {
+  return db.prepare<[], { dest: string }>("SELECT DISTINCT dest FROM moves WHERE state IN ('moving', 'moved', 'restoring')").all().map((r) => r.dest);
+}

@@ -16,6 +16,8 @@ import type { ExportDeploymentRow, ExportEventRow, ExportMediaRow } from '../led
 import { MovesiftError } from '../shared/errors.js';
 import type { DeploymentFacts } from './deployments-table.js';
 import type { DeploymentHealth } from '../shared/health.js';
+import { existsSync, mkdirSync, statSync } from 'node:fs';
+import { checkOutput, OutputErrorCode, writeOutput, type OutputContext } from './output-guard.js';
 import { rawCsvCell } from './report.js';
 
 export const CAMTRAP_VERSION = '1.0.2';
@@ -125,4 +127,15 @@ export function buildCamtrap(deps: ExportDeploymentRow[], media: ExportMediaRow[
       observations: table(OBSERVATION_FIELDS, obsRows),
     },
   };
+}
+
+/** Writes a package into `folder` (made if missing), each file checked and written whole
+ *  (output-guard.ts); every target is checked before the first is written. */
+export function writePackage(folder: string, descriptor: Record<string, unknown>, tables: CamtrapPackage['tables'], o: OutputContext): string[] {
+  if (existsSync(folder) && !statSync(folder).isDirectory()) throw new MovesiftError(OutputErrorCode.exists, `${folder}: is a file; a Camtrap DP package is a folder`);
+  const files: Array<[string, string]> = [['datapackage.json', JSON.stringify(descriptor, null, 2) + '\n'], ...Object.entries(tables).map(([name, text]) => [`${name}.csv`, text] as [string, string])];
+  for (const [name] of files) checkOutput(path.join(folder, name), o);
+  mkdirSync(folder, { recursive: true });
+  for (const [name, text] of files) writeOutput(path.join(folder, name), text, o);
+  return files.map(([name]) => name);
 }

@@ -71,7 +71,7 @@ export const api = {
   audit: (id: number) => call<AuditReport>(`api/audits/${id}`),
   answer: (id: number, event: string, animal: boolean, who: string) => call<AuditReport>(`api/audits/${id}/answers`, post({ event, animal, who })),
   calibrate: (recall: number, apply: boolean, who: string) => call<CalibrationResult>('api/calibrate', post({ recall, apply, who })),
-  exportData: (o: { format: 'csv' | 'camtrap-dp'; out: string; utcOffset?: string; deployments?: string; who: string }) => call<{ out: string }>('api/export', post(o)),
+  exportData: (o: { format: 'csv' | 'camtrap-dp'; out: string; utcOffset?: string; deployments?: string; who: string; force?: boolean }) => call<{ out: string }>('api/export', post(o)),
   cut: (out: string, exact: boolean) => call<TaskState>('api/cut', post({ out, exact })),
 
   watchScan: (onState: (s: ScanJobState) => void): (() => void) => watchStream('api/scans/progress', onState),

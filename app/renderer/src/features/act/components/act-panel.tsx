@@ -53,7 +53,7 @@ export function ActPanel({ who, initialTask, ask, onChanged }: Props) {
   const [applies, setApplies] = useState<ApplyInfo[]>([]);
   const [recall, setRecall] = useState('0.99');
   const [cal, setCal] = useState<CalibrationResult | null>(null);
-  const [exp, setExp] = useState({ format: 'camtrap-dp' as 'csv' | 'camtrap-dp', out: '', utcOffset: '', deployments: '' });
+  const [exp, setExp] = useState({ format: 'camtrap-dp' as 'csv' | 'camtrap-dp', out: '', utcOffset: '', deployments: '', force: false });
   const [cutOut, setCutOut] = useState('');
   const [message, setMessage] = useState<string | null>(null);
   const refresh = () => void api.applies().then(setApplies).catch(() => {});
@@ -188,8 +188,12 @@ export function ActPanel({ who, initialTask, ask, onChanged }: Props) {
             <input value={exp.deployments} onChange={(e) => setExp({ ...exp, deployments: e.target.value })} placeholder="deployments table (CSV) with coordinates" aria-label="deployments table" />
           </div>
         )}
+        <label className="row">
+          <input type="checkbox" checked={exp.force} onChange={(e) => setExp({ ...exp, force: e.target.checked })} aria-label="replace an earlier export" />
+          Replace an earlier export at this place (a ledger or a photo is never replaced)
+        </label>
         <div className="dialog-buttons">
-          <button type="button" disabled={!exp.out} onClick={act(async () => setMessage(`Exported to ${(await api.exportData({ format: exp.format, out: exp.out, utcOffset: exp.utcOffset || undefined, deployments: exp.deployments || undefined, who })).out}.`))}>
+          <button type="button" disabled={!exp.out} onClick={act(async () => setMessage(`Exported to ${(await api.exportData({ format: exp.format, out: exp.out, utcOffset: exp.utcOffset || undefined, deployments: exp.deployments || undefined, who, force: exp.force || undefined })).out}.`))}>
             Export
           </button>
         </div>
