@@ -16,8 +16,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { parseArgs } from 'node:util';
 import { resolveBinaries } from '../src/media/ffmpeg-binaries.js';
-import { buildReport } from '../src/pipeline/report.js';
-import { scan } from '../src/pipeline/scan.js';
+import { scanFamilies } from './scan-families.js';
 import { judgeClips, printClipTable, REAL_CLIPS, type ClipTruth } from './clip-truth.js';
 import { CLIP_FAMILIES, CLIP_FAMILY_FACTS, clipFamilyPlan, type ClipFamilyName } from './scenes/clip-families.js';
 import { renderClip } from './scenes/clip.js';
@@ -74,15 +73,7 @@ if (!existsSync(kept)) {
 }
 
 try {
-  const reports = [];
-  for (const f of [...families, ...(truth.some((t) => t.family === 'real') ? (['real'] as const) : [])]) {
-    const ledger = path.join(root, `${f}.ledger`);
-    rmSync(ledger, { force: true });
-    const t0 = Date.now();
-    await scan({ roots: [path.join(root, f)], ledger, workers: Math.max(1, os.availableParallelism()) });
-    console.error(`${f}: scanned in ${((Date.now() - t0) / 1000).toFixed(0)} s`);
-    reports.push({ family: f, report: buildReport(ledger) });
-  }
+  const reports = await scanFamilies(root, [...families, ...(truth.some((t) => t.family === 'real') ? (['real'] as const) : [])]);
   printClipTable(judgeClips(reports, truth), { ...CLIP_FAMILY_FACTS, real: { heldOut: true } });
 } finally {
   if (typeof values.keep !== 'string') rmSync(root, { recursive: true, force: true });

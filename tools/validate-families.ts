@@ -16,8 +16,7 @@ import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync
 import os from 'node:os';
 import path from 'node:path';
 import { parseArgs } from 'node:util';
-import { scan } from '../src/pipeline/scan.js';
-import { buildReport } from '../src/pipeline/report.js';
+import { scanFamilies } from './scan-families.js';
 import { drawDeployment, FAMILIES, FAMILY_FACTS, type FamilyName } from './scenes/families.js';
 import { writeDeployment, type TriggerTruth } from './scenes/write-deployment.js';
 import { inParts } from './parts.js';
@@ -50,15 +49,7 @@ const truth = existsSync(kept) ? (JSON.parse(readFileSync(kept, 'utf8')) as Trig
 });
 
 try {
-  const reports = [];
-  for (const f of families) {
-    const ledger = path.join(root, `${f}.ledger`);
-    rmSync(ledger, { force: true });
-    const t0 = Date.now();
-    await scan({ roots: [path.join(root, f)], ledger, workers: Math.max(1, os.availableParallelism()) });
-    console.error(`${f}: scanned in ${((Date.now() - t0) / 1000).toFixed(0)} s`);
-    reports.push({ family: f, report: buildReport(ledger) });
-  }
+  const reports = await scanFamilies(root, families);
   printFamilyTable(judgeFamilies(reports, truth), FAMILY_FACTS);
 } finally {
   if (typeof values.keep !== 'string') rmSync(root, { recursive: true, force: true });

@@ -10,6 +10,7 @@
  */
 import { promises as fs } from 'node:fs';
 import path from 'node:path';
+import { realTarget } from './output-guard.js';
 import { fingerprintFile } from '../media/fingerprint.js';
 import { openLedger } from '../ledger/open-ledger.js';
 import { createMoveStore, type MoveCandidate, type MoveStore } from '../ledger/move-store.js';
@@ -66,11 +67,22 @@ export function planMoves(candidates: MoveCandidate[], to: string): PlannedMove[
   return candidates.map((c) => ({ candidate: c, source: path.join(c.root, c.rel_path), dest: path.join(to, labels.get(c.root)!, c.rel_path) }));
 }
 
-async function preflight(store: MoveStore, plan: PlannedMove[], to: string, copy: boolean): Promise<void> {
+/**
+ * The set-aside folder must lie outside every scanned folder and not above one. Judged on real
+ * paths (links resolved, as far as the folder exists yet), so a link cannot lead the set-aside
+ * media back into a scanned tree; and judged for a dry run too, which must say what the real
+ * apply would say.
+ */
+function checkTarget(store: MoveStore, to: string): void {
+  const target = realTarget(to);
   for (const root of store.roots()) {
-    if (inside(to, root)) throw pipelineError(PipelineErrorCode.targetInsideRoot, `${to}: is inside the scanned folder ${root}; a rescan would find the set-aside media again. Choose a folder outside it`);
-    if (inside(root, to)) throw pipelineError(PipelineErrorCode.targetInsideRoot, `${to}: holds the scanned folder ${root}; choose a folder that is not above it`);
+    const r = realTarget(root);
+    if (inside(target, r)) throw pipelineError(PipelineErrorCode.targetInsideRoot, `${to}: is inside the scanned folder ${root}${target !== path.resolve(to) ? ` (through a link: it is ${target})` : ''}; a rescan would find the set-aside media again. Choose a folder outside it`);
+    if (inside(r, target)) throw pipelineError(PipelineErrorCode.targetInsideRoot, `${to}: holds the scanned folder ${root}; choose a folder that is not above it`);
   }
+}
+
+async function preflight(store: MoveStore, plan: PlannedMove[], to: string, copy: boolean): Promise<void> {
   for (const p of plan) if (await exists(p.dest)) throw pipelineError(PipelineErrorCode.nameClash, `${p.dest}: a file of that name is already in the set-aside folder; nothing was moved or overwritten`);
   try {
     await fs.mkdir(to, { recursive: true });
@@ -103,6 +115,7 @@ export async function applyDecisions(o: ApplyOptions): Promise<ApplySummary> {
     const plan = planMoves(store.candidates(), to);
     const bytes = plan.reduce((a, p) => a + p.candidate.size, 0);
     const summary: ApplySummary = { applyId: null, dryRun: !!o.dryRun, planned: plan, bytes, moved: 0, skipped: [], recovered, manifest: null, stopped: false };
+    checkTarget(store, to);
     if (o.dryRun || plan.length === 0) return summary;
     await preflight(store, plan, to, !!o.copy);
     const applyId = store.startApply(to, o.copy ? 'copy' : 'move', o.who ?? null);

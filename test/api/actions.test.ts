@@ -64,8 +64,10 @@ describe('apply and undo over the API', () => {
     expect(readdirSync(path.join(cards, 'ridge-trail'))).toHaveLength(32);
   });
   it('refuses a set-aside folder inside the scanned folder with its code, and bad input with 400', async () => {
+    // The plan says what the move would say (issue 23, item 3: it used to list the files).
     const r = await call(`/api/apply/plan?to=${encodeURIComponent(path.join(cards, 'x'))}`);
-    expect(r.status).toBe(200); // a plan is only a list; the refusal comes when moving
+    expect(r.status).toBe(409);
+    expect((await r.json()).code).toBe('E_APPLY_TARGET_INSIDE_ROOT');
     await call('/api/apply', { to: path.join(cards, 'x') });
     expect(await untilTaskDone()).toMatchObject({ status: 'failed', failure: { code: 'E_APPLY_TARGET_INSIDE_ROOT' } });
     for (const body of [{}, { to: 'relative' }, { to: 42 }]) expect((await call('/api/apply', body)).status).toBe(400);

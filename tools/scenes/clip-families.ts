@@ -11,7 +11,7 @@
  */
 import { Category, type CategoryName } from './categories.js';
 import type { ClipRequest } from './clip.js';
-import { clipPlan } from './clip-plans.js';
+import { clipPlan, drawVisits } from './clip-plans.js';
 import { makeRng } from './random.js';
 
 export const CLIP_FAMILIES = ['home-water', 'other-water'] as const;
@@ -54,14 +54,7 @@ export function clipFamilyPlan(family: ClipFamilyName, seed: number): ClipFamily
   const height = Math.round((width * rng.pick([9, 12])) / 16 / 2) * 2;
   const fps = rng.int(8, 12);
   const duration = Math.round(rng.range(45, 90));
-  const visits: ClipRequest['visits'] = [];
-  const want = rng.pick([1, 1, 2, 2, 3]);
-  let t = rng.range(3, 15);
-  for (let i = 0; i < want && t < duration - 4; i++) {
-    const len = rng.range(3, 15);
-    visits.push({ start_s: +t.toFixed(2), end_s: +Math.min(duration - 1, t + len).toFixed(2) });
-    t += len + rng.range(6, 25);
-  }
+  const visits = drawVisits(rng, duration, { counts: [1, 1, 2, 2, 3], firstS: [3, 15], lengthS: [3, 15], gapS: [6, 25], endMarginS: 4 });
   const [nuisance, distractor] = rng.pick(PAIRS);
   return {
     family,
