@@ -13,6 +13,7 @@
  */
 import type { HealthCode, HealthFinding } from '../shared/health.js';
 import type { SceneSignature } from './scene-signature.js';
+import { median } from './select.js';
 
 export type { HealthCode, HealthFinding };
 
@@ -74,10 +75,6 @@ const fileNumber = (f: string): number | undefined => {
   return m ? Number(m[1]) : undefined;
 };
 
-function median(v: number[]): number {
-  const s = [...v].sort((a, b) => a - b);
-  return s.length ? (s.length % 2 ? s[s.length >> 1] : (s[(s.length >> 1) - 1] + s[s.length >> 1]) / 2) : NaN;
-}
 
 /** Runs of consecutive triggers (in capture order) for which `hit` holds, at least `min` long. */
 function runs(list: readonly HealthInput[], hit: (e: HealthInput) => boolean, min: number): HealthInput[][] {

@@ -41,3 +41,12 @@ function medianOf3(x: number, y: number, z: number): number {
 
 /** The upper median (the value at index floor(n/2) of the sorted array), as sorting would give. */
 export const upperMedian = (values: ArrayLike<number>, scratch?: Float64Array): number => selectKth(values, values.length >> 1, scratch);
+
+/** The median of a short list of numbers (sorted copy; the mean of the middle two for an even
+ *  count; NaN for none). */
+export function median(v: readonly number[]): number {
+  if (!v.length) return NaN;
+  const s = [...v].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
+}

@@ -11,6 +11,7 @@
  */
 import { checkNumber } from '../shared/validate.js';
 import type { Blob } from './components.js';
+import { median } from './select.js';
 
 export interface TrackPoint {
   frame: number;
@@ -81,11 +82,6 @@ export function linkTracks(blobsPerFrame: readonly Blob[][], width: number, heig
   return tracks;
 }
 
-function median(v: number[]): number {
-  const s = [...v].sort((a, b) => a - b);
-  const m = s.length >> 1;
-  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
-}
 
 /** `snrScale`: the factor by which blob change values exceed sigmas (the SNR image's scale). */
 export function trackFeatures(track: Track, frameCount: number, width: number, height: number, snrScale: number): TrackFeatures {

@@ -33,14 +33,6 @@ export function realTarget(file: string): string {
   return path.join(existsSync(dir) ? realpathSync(dir) : dir, ...rest);
 }
 
-const realOrSelf = (p: string): string => {
-  try {
-    return realpathSync(p);
-  } catch {
-    return path.resolve(p);
-  }
-};
-
 function isSqlite(file: string): boolean {
   const fd = openSync(file, 'r');
   try {
@@ -61,7 +53,7 @@ export interface OutputContext {
 /** Throws E_OUTPUT_PROTECTED or E_OUTPUT_EXISTS when `file` may not be written. */
 export function checkOutput(file: string, o: OutputContext): void {
   const target = realTarget(file);
-  const ledger = realOrSelf(o.ledger);
+  const ledger = realTarget(o.ledger);
   const refuse = (why: string): never => {
     throw new MovesiftError(OutputErrorCode.protectedFile, `${file}: ${why}; it is never replaced. Choose another name.`);
   };
@@ -69,10 +61,10 @@ export function checkOutput(file: string, o: OutputContext): void {
   const previews = `${ledger}.previews`;
   if (target === previews || target.startsWith(previews + path.sep)) refuse("is inside the ledger's previews");
   for (const root of ledgerRoots(o.db)) {
-    const r = realOrSelf(root);
+    const r = realTarget(root);
     if (target.startsWith(r + path.sep) && isLedgerMedium(o.db, root, path.relative(r, target).split(path.sep).join('/'))) refuse('is a medium this ledger screened');
   }
-  if (setAsidePaths(o.db).some((d) => realOrSelf(d) === target)) refuse('is a medium an apply moved into a set-aside folder');
+  if (setAsidePaths(o.db).some((d) => realTarget(d) === target)) refuse('is a medium an apply moved into a set-aside folder');
   if (!existsSync(target)) return;
   if (statSync(target).isDirectory()) throw new MovesiftError(OutputErrorCode.exists, `${file}: is a folder; give a file name`);
   if (isSqlite(target)) refuse('is a SQLite database (perhaps another ledger)');

@@ -6,36 +6,29 @@
 import { cpSync, existsSync, readdirSync } from 'node:fs';
 import path from 'node:path';
 import Database from 'better-sqlite3';
-import type { Browser, Page } from 'playwright-core';
+import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { scan } from '../../src/pipeline/scan.js';
-import { launchChromium } from '../helpers/browser.js';
+import { openAppPage, type AppPage } from '../helpers/app-page.js';
 import { ROOT, runCli, tempDir } from '../helpers/cli.js';
-import { startReview, type RunningReview } from '../helpers/review-server.js';
 import { until } from '../helpers/until.js';
 
 const SHOTS = path.join(ROOT, 'test-artifacts');
 const dir = tempDir('movesift-e2e-act-');
 const cards = path.join(dir, 'cards');
 const ledger = path.join(dir, 'act.ledger');
-let review: RunningReview;
-let browser: Browser;
+let app: AppPage | undefined;
 let page: Page;
 
 beforeAll(async () => {
   cpSync(path.join(ROOT, 'sample-media/ridge-trail'), path.join(cards, 'ridge-trail'), { recursive: true });
   await scan({ roots: [cards], ledger });
   expect(runCli(['decide', ledger, '--set-aside', '--verdict', 'likely-blank']).code).toBe(0);
-  review = await startReview([ledger]);
-  browser = await launchChromium();
-  page = await browser.newPage({ viewport: { width: 1400, height: 900 } });
-  page.on('pageerror', (e) => console.error('page error:', e.message));
-  await page.goto(review.url);
-  await until('cards', async () => (await page.locator('.card[data-event]').count()) > 0);
+  app = await openAppPage(ledger);
+  page = app.page;
 }, 180_000);
 afterAll(async () => {
-  await browser?.close();
-  await review?.stop();
+  await app?.close();
 });
 
 describe('acting on decisions in the app', () => {

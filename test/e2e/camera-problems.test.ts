@@ -4,36 +4,29 @@
  * open trigger of the fogged run says which problem concerns it; a healthy trigger says nothing.
  */
 import path from 'node:path';
-import type { Browser, Page } from 'playwright-core';
+import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { scan } from '../../src/pipeline/scan.js';
 import { buildReport } from '../../src/pipeline/report.js';
-import { launchChromium } from '../helpers/browser.js';
+import { openAppPage, type AppPage } from '../helpers/app-page.js';
 import { ROOT, tempDir } from '../helpers/cli.js';
 import { writeFaultyCard } from '../helpers/faulty-card.js';
-import { startReview, type RunningReview } from '../helpers/review-server.js';
 import { until } from '../helpers/until.js';
 
 const SHOTS = path.join(ROOT, 'test-artifacts');
 const dir = tempDir('movesift-e2e-health-');
 const ledger = path.join(dir, 'health.ledger');
-let review: RunningReview;
-let browser: Browser;
+let app: AppPage | undefined;
 let page: Page;
 
 beforeAll(async () => {
   await writeFaultyCard(path.join(dir, 'cards'));
   await scan({ roots: [path.join(dir, 'cards')], ledger });
-  review = await startReview([ledger]);
-  browser = await launchChromium();
-  page = await browser.newPage({ viewport: { width: 1400, height: 900 } });
-  page.on('pageerror', (e) => console.error('page error:', e.message));
-  await page.goto(review.url);
-  await until('cards', async () => (await page.locator('.card[data-event]').count()) > 0);
+  app = await openAppPage(ledger);
+  page = app.page;
 }, 180_000);
 afterAll(async () => {
-  await browser?.close();
-  await review?.stop();
+  await app?.close();
 });
 
 describe('camera problems in the app', () => {
