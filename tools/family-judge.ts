@@ -16,10 +16,15 @@ export interface FamilyResult {
   falseTriggers: number;
   falseBlank: number;
   falseUnsure: number;
+  /** Of the false triggers called likely-blank, those the deployment's own calibration called
+   *  so (the fitted model alone would not have). */
+  falseBlankByDeployment: number;
+  /** Deployments and light modes by pass two's calibration status. */
+  calibration: Record<string, number>;
   /** Mean over deployments with both kinds of the within-deployment AUC. */
   meanAuc: number;
   /** Animals called likely-blank: deployment, files, category, score. */
-  lost: Array<{ deployment: string; first: string; category: string; score: number }>;
+  lost: Array<{ deployment: string; first: string; category: string; score: number; rule: string }>;
   /** Events of the report with no trigger in the truth (grouping differs from the shooting). */
   unmatched: number;
 }
@@ -35,7 +40,7 @@ export function aucOf(pos: readonly number[], neg: readonly number[]): number {
 export function judgeFamilies(reports: ReadonlyArray<{ family: FamilyName; report: Report }>, truth: readonly TriggerTruth[]): FamilyResult[] {
   const byFirst = new Map(truth.map((t) => [t.files[0], t]));
   return reports.map(({ family, report }) => {
-    const r: FamilyResult = { family, deployments: 0, animals: 0, animalsKept: 0, falseTriggers: 0, falseBlank: 0, falseUnsure: 0, meanAuc: NaN, lost: [], unmatched: 0 };
+    const r: FamilyResult = { family, deployments: 0, animals: 0, animalsKept: 0, falseTriggers: 0, falseBlank: 0, falseUnsure: 0, falseBlankByDeployment: 0, calibration: {}, meanAuc: NaN, lost: [], unmatched: 0 };
     const perDeployment = new Map<string, { pos: number[]; neg: number[] }>();
     for (const e of report.events) {
       // A scan reports files relative to the folder it scanned (the family's folder), the truth
@@ -51,15 +56,17 @@ export function judgeFamilies(reports: ReadonlyArray<{ family: FamilyName; repor
         r.animals++;
         d.pos.push(e.score);
         if (e.verdict !== 'likely-blank') r.animalsKept++;
-        else r.lost.push({ deployment: t.deployment, first: e.files[0], category: t.category, score: e.score });
+        else r.lost.push({ deployment: t.deployment, first: e.files[0], category: t.category, score: e.score, rule: e.rule });
       } else {
         r.falseTriggers++;
         d.neg.push(e.score);
         if (e.verdict === 'likely-blank') r.falseBlank++;
+        if (e.verdict === 'likely-blank' && e.rule === 'deployment') r.falseBlankByDeployment++;
         if (e.verdict === 'unsure') r.falseUnsure++;
       }
     }
     r.deployments = perDeployment.size;
+    for (const c of report.calibrations ?? []) r.calibration[c.status] = (r.calibration[c.status] ?? 0) + 1;
     const aucs = [...perDeployment.values()].map((d) => aucOf(d.pos, d.neg)).filter((v) => Number.isFinite(v));
     r.meanAuc = aucs.length ? aucs.reduce((a, b) => a + b, 0) / aucs.length : NaN;
     return r;
@@ -78,9 +85,11 @@ export function printFamilyTable(results: readonly FamilyResult[], facts: Record
       'animals kept': pct(r.animalsKept, r.animals),
       'false triggers likely-blank': pct(r.falseBlank, r.falseTriggers),
       'false triggers unsure': r.falseUnsure,
+      'of the blank, by the deployment': r.falseBlankByDeployment,
+      calibration: Object.entries(r.calibration).map(([k, n]) => `${n} ${k}`).join(', '),
       'AUC within deployment': r.meanAuc.toFixed(3),
     })),
   );
-  for (const r of results) for (const l of r.lost) console.log(`lost: ${r.family} ${l.first} (${l.category}) score ${l.score.toFixed(4)}`);
+  for (const r of results) for (const l of r.lost) console.log(`lost: ${r.family} ${l.first} (${l.category}) score ${l.score.toFixed(4)}, by the ${l.rule}'s rule`);
   for (const r of results) if (r.unmatched) console.log(`${r.family}: ${r.unmatched} events not matched to a trigger (grouping split or merged triggers)`);
 }

@@ -11,6 +11,7 @@
  *   the way to compare two versions of the engine on the same cards)
  *   npm run validate:families -- --first-seed 3100     other deployments: after a change was
  *   judged on the first seeds, the number to report comes from seeds it was not looked at on
+ *   npm run validate:families -- --deployment-cut     with each deployment's own cut (scan --deployment-cut)
  */
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
@@ -23,7 +24,7 @@ import { inParts } from './parts.js';
 import { judgeFamilies, printFamilyTable } from './family-judge.js';
 
 const { values } = parseArgs({
-  options: { deployments: { type: 'string' }, triggers: { type: 'string' }, families: { type: 'string' }, keep: { type: 'string' }, 'first-seed': { type: 'string' }, part: { type: 'string' } },
+  options: { deployments: { type: 'string' }, triggers: { type: 'string' }, families: { type: 'string' }, keep: { type: 'string' }, 'first-seed': { type: 'string' }, part: { type: 'string' }, 'deployment-cut': { type: 'boolean' } },
   allowPositionals: true,
   strict: false,
 });
@@ -49,7 +50,7 @@ const truth = existsSync(kept) ? (JSON.parse(readFileSync(kept, 'utf8')) as Trig
 });
 
 try {
-  const reports = await scanFamilies(root, families);
+  const reports = await scanFamilies(root, families, { deploymentCut: values['deployment-cut'] === true });
   printFamilyTable(judgeFamilies(reports, truth), FAMILY_FACTS);
 } finally {
   if (typeof values.keep !== 'string') rmSync(root, { recursive: true, force: true });

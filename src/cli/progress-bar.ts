@@ -19,7 +19,7 @@ export function progressPrinter(mode: 'json' | 'bar' | 'quiet', out: NodeJS.Writ
       out.write(`  ! ${p.code} ${p.message}\n`);
       return;
     }
-    if (p.type === 'deployment') {
+    if (p.type === 'deployment' || p.type === 'calibration') {
       if (!p.note) return;
       if (drawn) out.write('\r\x1b[K');
       drawn = false;

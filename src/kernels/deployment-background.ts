@@ -9,8 +9,12 @@
  * better), then mapped by a robust per-channel gain and offset. Its disagreement with the
  * reference is the median absolute luma difference over valid pixels. A neighbour that
  * disagrees far more than the trigger's own frames do with each other (other light mode,
- * camera moved, a scene that changed) is dropped. The per-pixel median of the rest removes a
- * visitor that is in fewer than half of them.
+ * camera moved, a scene that changed) is dropped. It is judged after a smooth relighting too,
+ * so that a neighbour under another cloud shadow is not taken for another scene; but the
+ * median is built from the neighbours as the gain fit left them, not relit: a field smooth
+ * enough to follow a shadow can also follow a large, low-contrast animal in the reference and
+ * paint it into the background (a single image's only cue). The per-pixel median of the kept
+ * neighbours removes a visitor that is in fewer than half of them.
  *
  * Output: uint8 RGB like the inputs, plus the valid mask (0 where a shift left no data) and a
  * record of each neighbour's fit.
@@ -21,6 +25,7 @@ import { checkFrame, checkSameShape, type GreyFrame, type RgbFrame } from './fra
 import { medianAbsLumaDiff, toLuma } from './luma.js';
 import { estimateShift, shiftReference, worthCompensating, type Shift, type ShiftReference } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
+import { relightMeasured } from './shading.js';
 import { temporalMedian } from './temporal-median.js';
 import { andValidity, translateBilinear, translateValidity } from './translate.js';
 
@@ -29,6 +34,11 @@ export interface NeighbourFit {
   compensated: boolean;
   /** Median absolute luma difference to the reference after alignment and gain (grey levels). */
   disagreement: number;
+  /** The same after the light is also allowed to fall differently over the frame (a smooth
+   *  relighting field, shading.ts relightMeasured): a neighbour taken under another cloud
+   *  shadow shows the same place, only lit otherwise. What the neighbour is judged by; equal
+   *  to `disagreement` where relighting did not help. */
+  relitDisagreement: number;
   kept: boolean;
 }
 
@@ -90,6 +100,7 @@ export function deploymentBackground(reference: RgbFrame, neighbours: readonly R
     const shift = estimateShift(spectrum, toLuma(nb));
     let valid: Uint8Array | undefined = mask;
     let compensated = false;
+    let aligned = nb;
     let best = onReference(nb, mask);
     if (worthCompensating(shift, minConfidence)) {
       const t = translateBilinear(nb, shift.dx, shift.dy);
@@ -101,15 +112,20 @@ export function deploymentBackground(reference: RgbFrame, neighbours: readonly R
       const moved = onReference(t.frame, tValid);
       if (moved.disagreement < 0.9 * best.disagreement) {
         best = moved;
+        aligned = t.frame;
         valid = tValid;
         compensated = true;
       }
     }
-    return { normalised: best.normalised, valid, fit: { shift, compensated, disagreement: best.disagreement, kept: false } as NeighbourFit };
+    // Relit from the aligned frame, not the gain-fitted one: one gain over a half-shadowed frame
+    // clips its sunlit half at 255, and what was clipped cannot be relit.
+    const lit = relightMeasured(refLuma, aligned, valid);
+    const relit = lit.spread === 0 ? best.disagreement : Math.min(best.disagreement, onReference(lit.frame, valid).disagreement);
+    return { normalised: best.normalised, valid, fit: { shift, compensated, disagreement: best.disagreement, relitDisagreement: relit, kept: false } as NeighbourFit };
   });
-  const yardstick = options.ownDisagreement ?? Math.min(255, ...fitted.map((f) => f.fit.disagreement));
+  const yardstick = options.ownDisagreement ?? Math.min(255, ...fitted.map((f) => f.fit.relitDisagreement));
   const limit = TOLERANCE_FACTOR * yardstick + TOLERANCE_LEVELS;
-  const kept = fitted.filter((f) => f.fit.disagreement <= limit);
+  const kept = fitted.filter((f) => f.fit.relitDisagreement <= limit);
   for (const f of kept) f.fit.kept = true;
   const fits = fitted.map((f) => f.fit);
   if (kept.length < minKept || kept.length === 0) return { fits };

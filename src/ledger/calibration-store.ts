@@ -25,11 +25,13 @@ export function createCalibrationStore(db: Ledger) {
          (SELECT x.animal FROM audit_answers x WHERE x.event_id = e.id ORDER BY x.id DESC LIMIT 1) AS audit_animal
        FROM events e JOIN analyses a ON a.event_id = e.id LEFT JOIN latest_decisions ld ON ld.event_id = e.id`,
     ),
+    deployments: db.prepare<[], { id: string }>('SELECT id FROM deployments ORDER BY id'),
     setVerdict: db.prepare('UPDATE analyses SET verdict = ? WHERE event_id = ? AND verdict != ?'),
     log: db.prepare('INSERT INTO calibrations (at, who, target_recall, threshold, animals, recall_lower, applied, changed) VALUES (?, ?, ?, ?, ?, ?, ?, ?)'),
   };
   return {
     events: () => s.events.all(),
+    deployments: () => s.deployments.all().map((r) => r.id),
     /** Sets the verdicts of undecided events; returns how many changed. */
     reverdict: db.transaction((verdicts: Array<{ id: string; verdict: string }>): number => verdicts.reduce((n, v) => n + s.setVerdict.run(v.verdict, v.id, v.verdict).changes, 0)),
     log: (r: { who: string | null; target: number; threshold: number; animals: number; lower: number; applied: boolean; changed: number }) =>

@@ -40,6 +40,13 @@ export function openLedger(file: string, o: { create?: boolean; readonly?: boole
     }
     db.pragma('foreign_keys = ON');
     if (!o.readonly) migrate(db, version);
+    else if (version < MIGRATIONS.length && version > 0) {
+      // A reader of a ledger an older Movesift wrote: bring it up to date once through a
+      // writing connection (each migration is one transaction), then read as asked.
+      db.close();
+      openLedger(file).close();
+      return openLedger(file, o);
+    }
     return db;
   } catch (e) {
     db.close();

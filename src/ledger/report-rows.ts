@@ -11,6 +11,7 @@ export interface ReportEventRow {
   end_time: string;
   verdict: 'likely-blank' | 'unsure' | 'motion';
   score: number;
+  rule: 'model' | 'deployment' | null;
   files: string;
   windows: string | null;
   decision: 'keep' | 'set-aside' | null;
@@ -28,7 +29,7 @@ export interface ReportErrorRow {
 export function reportEvents(db: Ledger): ReportEventRow[] {
   return db
     .prepare<[], ReportEventRow>(
-      `SELECT e.id, e.kind, e.deployment_id AS deployment, r.path AS root, e.start_time, e.end_time, a.verdict, a.score,
+      `SELECT e.id, e.kind, e.deployment_id AS deployment, r.path AS root, e.start_time, e.end_time, a.verdict, a.score, a.rule,
          (SELECT json_group_array(rel_path) FROM (SELECT m.rel_path FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id ORDER BY em.position)) AS files,
          (SELECT json_group_array(json_object('start_s', start_s, 'end_s', end_s, 'score', score)) FROM (SELECT * FROM windows w WHERE w.analysis_id = a.id ORDER BY w.start_s)) AS windows,
          d.decision, d.who AS decided_by, d.at AS decided_at

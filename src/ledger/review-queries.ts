@@ -3,7 +3,7 @@
  * previews and media by ledger id, deployment counts, and the append-only decisions log.
  */
 import { randomUUID } from 'node:crypto';
-import type { EventCard, EventFilter } from '../shared/review-api.js';
+import type { EventCalibration, EventCard, EventFilter, VerdictRule } from '../shared/review-api.js';
 import type { Ledger } from './open-ledger.js';
 import { healthRows } from './report-rows.js';
 
@@ -34,13 +34,19 @@ function orderOf(f: Pick<EventFilter, 'sort' | 'desc'>): string {
 }
 
 export function createReviewQueries(db: Ledger) {
-  const eventStmt = db.prepare<[string], EventCard & { analysis_id: number; detail: string; features: string; engine_version: string; analysis_width: number; analysis_height: number }>(
-    `SELECT e.id, e.kind, e.deployment_id AS deployment, e.start_time AS start, e.end_time AS end, a.id AS analysis_id, a.score, a.verdict, a.detail, a.features,
+  const eventStmt = db.prepare<[string], EventCard & { analysis_id: number; detail: string; features: string; engine_version: string; analysis_width: number; analysis_height: number; rule: VerdictRule | null }>(
+    `SELECT e.id, e.kind, e.deployment_id AS deployment, e.start_time AS start, e.end_time AS end, a.id AS analysis_id, a.score, a.verdict, a.rule, a.detail, a.features,
        a.engine_version, a.analysis_width, a.analysis_height, d.decision,
        (SELECT count(*) FROM event_media WHERE event_id = e.id) AS frames,
        (SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = e.id ORDER BY em.position LIMIT 1) AS light,
        NULL AS thumb, NULL AS heat
      FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} WHERE e.id = ?`,
+  );
+  const middleLight = db.prepare<[string, string], { light: string | null }>(
+    'SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = ? AND em.position = (SELECT count(*) FROM event_media c WHERE c.event_id = ?) / 2',
+  );
+  const calibrationOf = db.prepare<[string, string], { status: EventCalibration['status']; cut: number; fitted_blank: number; usable: number; light: string }>(
+    'SELECT status, cut, fitted_blank, usable, light FROM deployment_calibrations WHERE deployment_id = ? AND light = ?',
   );
   const mediaOfEvent = db.prepare<[string], { id: number; position: number; rel_path: string; kind: string; capture_time: string; width: number; height: number; duration_s: number | null }>(
     'SELECT m.id, em.position, m.rel_path, m.kind, m.capture_time, m.width, m.height, m.duration_s FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = ? ORDER BY em.position',
@@ -83,8 +89,13 @@ export function createReviewQueries(db: Ledger) {
     event(id: string) {
       const e = eventStmt.get(id);
       if (!e) return undefined;
-      const { analysis_id, detail, features, ...card } = e;
-      return { ...card, detail: JSON.parse(detail) as unknown, features: JSON.parse(features) as unknown, media: mediaOfEvent.all(id), windows: windowsOf.all(analysis_id), previews: previewsOf.all(analysis_id) };
+      const { analysis_id, detail, features, rule, ...card } = e;
+      // The calibration of the event's deployment and light mode (the light of its middle file,
+      // as pass two groups it: pipeline/deployment-pass.ts).
+      const light = card.kind === 'clip' ? undefined : (middleLight.get(id, id)?.light ?? 'unknown');
+      const c = light === undefined ? undefined : calibrationOf.get(card.deployment, light);
+      const calibration: EventCalibration | null = c ? { status: c.status, cut: c.cut, fittedBlank: c.fitted_blank, usable: c.usable, light: c.light } : null;
+      return { ...card, rule: rule ?? 'model', calibration, detail: JSON.parse(detail) as unknown, features: JSON.parse(features) as unknown, media: mediaOfEvent.all(id), windows: windowsOf.all(analysis_id), previews: previewsOf.all(analysis_id) };
     },
     /** Ids of analysed events matching every given condition (for scripted decisions). */
     matchingIds(m: { verdict?: string; scoreBelow?: number; deployment?: string; ids?: string[] }): string[] {

@@ -14,6 +14,7 @@
  * from other triggers is never likely-blank, one under moving light only below a low score).
  */
 import { openLedger } from '../ledger/open-ledger.js';
+import { deploymentPass } from './deployment-pass.js';
 import { createCalibrationStore } from '../ledger/calibration-store.js';
 import { MOTION_MODEL } from '../kernels/model.js';
 import { blankScore, verdictFor, Verdict, type BlankGuard } from '../kernels/score.js';
@@ -51,6 +52,9 @@ export function calibrate(ledger: string, o: { recall: number; apply?: boolean; 
       applied = true;
     }
     store.log({ who: o.who ?? null, target: o.recall, threshold: best.threshold, animals: n, lower: best.lower, applied, changed: applied ? changes.length : 0 });
+    // Applied, the labelled threshold is in force for every deployment: the second pass records
+    // that its own unlabelled calibration steps aside (deployment-pass.ts).
+    if (applied) deploymentPass(db, store.deployments(), { raise: false });
     return {
       target: o.recall,
       animals: n,

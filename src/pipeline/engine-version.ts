@@ -12,7 +12,13 @@ import pkg from '../../package.json' with { type: 'json' };
 const sha = (s: string): string => createHash('sha256').update(s).digest('hex');
 
 export const MODEL_HASH = sha(JSON.stringify([MOTION_MODEL, CLIP_MODEL])).slice(0, 10);
-export const ENGINE_VERSION = `${pkg.version}+${MODEL_HASH}`;
+/**
+ * Raised whenever the engine's code changes what an analysis holds without the model or a
+ * parameter changing (a kernel's rule, the neighbours chosen): ledgers scanned before it are
+ * screened again instead of mixing two engines' verdicts.
+ */
+export const ENGINE_REVISION = 2;
+export const ENGINE_VERSION = `${pkg.version}+${MODEL_HASH}.r${ENGINE_REVISION}`;
 
 export interface AnalysisSettings {
   analysisWidth: number;

@@ -9,4 +9,7 @@ export type ScanProgress =
   /** What the scan learned of a deployment before screening its events: its data strip by
    *  consensus over `frames` triggers (none when too few; `note` then says so). */
   | { type: 'deployment'; deployment: string; frames: number; strip?: DataStrip; note?: string }
+  /** Pass two's calibration of a deployment and light mode (deployment-pass.ts); `note` when it
+   *  was not applied, saying why. */
+  | { type: 'calibration'; deployment: string; light: string; status: string; usable: number; cut: number; note?: string }
   | { type: 'done'; summary: ScanSummary };

@@ -4,6 +4,7 @@
  * ones never change meaning. CSV gives one row per event with the same fields.
  */
 import { openLedger } from '../ledger/open-ledger.js';
+import { createDeploymentPassStore } from '../ledger/deployment-pass-store.js';
 import { healthRows, reportErrors, reportEvents, type HealthRow } from '../ledger/report-rows.js';
 import { deploymentHealth, type NeighbourRecord } from '../kernels/deployment-health.js';
 import type { DeploymentHealth } from '../shared/health.js';
@@ -24,9 +25,26 @@ export interface ReportEvent {
   end: string;
   verdict: 'likely-blank' | 'unsure' | 'motion';
   score: number;
+  /** Which rule decided the verdict (kernels/deployment-calibration.ts): the fitted model's, or
+   *  the deployment's own calibration. Clips and analyses older than the rule say `model`. */
+  rule: 'model' | 'deployment';
   windows: ReportWindow[];
   decision: 'keep' | 'set-aside' | null;
   root: string;
+}
+
+export interface ReportCalibration {
+  deployment: string;
+  light: string;
+  status: 'applied' | 'too-few' | 'busy' | 'labels' | 'off';
+  events: number;
+  usable: number;
+  /** Median and spread of logit(score) over the usable events. */
+  median: number | null;
+  spread: number | null;
+  /** The blank threshold in force for the deployment, and the fitted one it started from. */
+  cut: number;
+  fittedBlank: number;
 }
 
 /** What went wrong with a deployment's camera (deployment-health.ts). */
@@ -36,6 +54,8 @@ export interface Report {
   schema: 'movesift.report/1';
   events: ReportEvent[];
   deployments: ReportDeployment[];
+  /** Pass two's calibration per deployment and light mode (deployment-pass.ts). */
+  calibrations: ReportCalibration[];
   errors: Array<{ file: string; code: string; message: string; root: string }>;
 }
 
@@ -51,11 +71,17 @@ export function buildReport(ledger: string): Report {
       end: r.end_time,
       verdict: r.verdict,
       score: Math.round(r.score * 10000) / 10000,
+      rule: r.rule ?? 'model',
       windows: r.windows ? (JSON.parse(r.windows) as ReportWindow[]) : [],
       decision: r.decision,
       root: r.root,
     }));
-    return { schema: 'movesift.report/1', events, deployments: deploymentsHealth(healthRows(db)), errors: reportErrors(db) };
+    const r4 = (v: number | null) => (v === null ? null : Math.round(v * 10000) / 10000);
+    const calibrations = createDeploymentPassStore(db).calibrations().map((c) => ({
+      deployment: c.deployment_id, light: c.light, status: c.status as ReportCalibration['status'], events: c.events, usable: c.usable,
+      median: r4(c.median), spread: r4(c.spread), cut: r4(c.cut)!, fittedBlank: r4(c.fitted_blank)!,
+    }));
+    return { schema: 'movesift.report/1', events, deployments: deploymentsHealth(healthRows(db)), calibrations, errors: reportErrors(db) };
   } finally {
     db.close();
   }

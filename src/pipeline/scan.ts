@@ -20,6 +20,7 @@ import { createWorkerPool } from './worker-pool.js';
 import { safeOutcome } from './safe-outcome.js';
 import { deploymentStrip } from './deployment-strip.js';
 import { MIN_CONSENSUS_FRAMES } from '../kernels/data-strip.js';
+import { calibrationNote, deploymentPass } from './deployment-pass.js';
 
 export interface ScanOptions {
   roots: string[];
@@ -28,6 +29,9 @@ export interface ScanOptions {
   videoFps?: number;
   eventGapS?: number;
   flow?: boolean;
+  /** Let pass two raise each deployment's likely-blank cut (kernels/deployment-calibration.ts).
+   *  Off by default: it trades low-scoring animals for false triggers (docs/held-out-validation.md). */
+  deploymentCut?: boolean;
   deploymentsTable?: string;
   /** Runs analyses; defaults to in-process (workers 1) or a worker-thread pool. Tests pass their own. */
   runner?: (task: EventTask) => Promise<TaskOutcome>;
@@ -70,7 +74,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
   const db = openLedger(o.ledger, { create: true });
   const store = createScanStore(db);
   const hash = paramHash(settings);
-  const scanId = store.startScan(roots, { ...settings, eventGapS: gap }, ENGINE_VERSION);
+  const scanId = store.startScan(roots, { ...settings, eventGapS: gap, deploymentCut: !!o.deploymentCut }, ENGINE_VERSION);
   const workers = Math.max(1, Math.floor(o.workers ?? 1));
   const pool = !o.runner && workers > 1 ? createWorkerPool(workers) : undefined;
   const runner = (t: EventTask): Promise<TaskOutcome> => (pool ? pool.run(t) : safeOutcome(t, o.runner ?? runEventTask));
@@ -82,6 +86,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
     emit({ type: 'phase', phase: 'read', total: totalFiles });
     const tasks: Array<{ task: EventTask; plan: EventPlan; rootId: number; rels: string[] }> = [];
     const awayKeys = new Set<string>();
+    const touched = new Set<string>();
     let read = 0;
     for (let ri = 0; ri < roots.length; ri++) {
       const root = roots[ri];
@@ -119,6 +124,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
         else byDeployment.set(r.deployment_id, [r]);
       }
       const plans: EventPlan[] = [];
+      for (const dep of byDeployment.keys()) touched.add(dep);
       for (const [dep, media] of byDeployment) {
         const byId = new Map(media.map((m) => [m.id, m]));
         const groups = groupEvents(media.map((m) => ({ mediaId: m.id, rel: m.rel_path, kind: m.kind, sortMs: m.capture_sort_ms })), gap, MAX_EVENT_FRAMES);
@@ -142,14 +148,19 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
         for (const g of groups) {
           const items = g.items.map((it) => byId.get(it.mediaId)!);
           const id = eventIdOf(dep, items[0].rel_path);
+          // The neighbours join the input hash as the strip does: a card added to the deployment
+          // gives the events near its edge other neighbours, and only those are screened again.
+          const near = neighbourMap.get(g) ?? [];
           const plan: EventPlan = {
             id, deployment_id: dep, kind: g.kind, start_time: items[0].capture_time, end_time: items[items.length - 1].capture_time,
-            start_sort_ms: items[0].capture_sort_ms, input_hash: hashOf([...items.map((m) => `${m.rel_path}:${m.fingerprint}`), ...(g.kind === 'clip' ? [] : stripKey)]), media: items.map((m) => m.id),
+            start_sort_ms: items[0].capture_sort_ms,
+            input_hash: hashOf([...items.map((m) => `${m.rel_path}:${m.fingerprint}`), ...(g.kind === 'clip' ? [] : [...stripKey, ...near.map((m) => `near:${m.rel_path}:${m.fingerprint}`)])]),
+            media: items.map((m) => m.id),
           };
           plans.push(plan);
           const first = items[0];
           const size = analysisSize(first.width, first.height, Math.min(settings.analysisWidth, first.width));
-          const neighbours = (neighbourMap.get(g) ?? []).map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path }));
+          const neighbours = near.map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path }));
           tasks.push({
             plan, rootId, rels: items.map((m) => m.rel_path),
             task: { eventId: id, kind: g.kind, files: items.map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path })), neighbours, width: size.width, height: size.height, videoFps: settings.videoFps, flow: settings.flow, cacheDir, deploymentStrip: consensus.strip },
@@ -201,6 +212,10 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
     };
     await Promise.all(Array.from({ length: concurrency }, work));
     summary.stopped = !!o.signal?.aborted;
+    // Pass two, over what pass one stored: also after a stop, on the events screened so far
+    // (the next scan settles the rest).
+    const pass = deploymentPass(db, [...touched], { raise: !!o.deploymentCut });
+    for (const r of pass.rows) emit({ type: 'calibration', deployment: r.deployment, light: r.light, status: r.status, usable: r.usable, cut: r.cut, note: calibrationNote(r) });
     store.endScan(scanId, summary.stopped ? 'stopped' : 'done');
     for (const c of store.verdictCounts()) summary.verdicts[c.verdict] = c.n;
     summary.errors = store.errorCount();
@@ -217,8 +232,16 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
 }
 
 type StoredMedia = MediaRow & { id: number };
+/**
+ * Neighbours per image event. The background needs 3 of them kept (analyse-event.ts, a burst's
+ * minKept), and a neighbour is dropped when its light or view differs too much; with only four,
+ * two taken under other light left too few as often as not on held-out scene families (the
+ * measurements are in docs/held-out-validation.md). Six leave room for that; eight gained
+ * nothing more there and cost two more frames to read per event.
+ */
+const NEIGHBOURS = 6;
 
-/** For each image event: middle media of the nearest image events (two before, two after,
+/** For each image event: middle media of the nearest image events (three before, three after,
  *  more on one side when the other runs out) with the same light mode, from which the engine
  *  builds that event's deployment background. One pass per deployment. */
 function imageNeighbours(groups: Group[], byId: Map<number, StoredMedia>): Map<Group, StoredMedia[]> {
@@ -234,9 +257,9 @@ function imageNeighbours(groups: Group[], byId: Map<number, StoredMedia>): Map<G
   for (const same of byLight.values()) {
     same.forEach((g, k) => {
       const near: StoredMedia[] = [];
-      for (let d = 1; near.length < 4 && (k - d >= 0 || k + d < same.length); d++) {
+      for (let d = 1; near.length < NEIGHBOURS && (k - d >= 0 || k + d < same.length); d++) {
         if (k - d >= 0) near.push(mid(same[k - d]));
-        if (near.length < 4 && k + d < same.length) near.push(mid(same[k + d]));
+        if (near.length < NEIGHBOURS && k + d < same.length) near.push(mid(same[k + d]));
       }
       out.set(g, near);
     });

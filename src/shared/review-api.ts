@@ -101,7 +101,24 @@ export interface ClipDetail {
   scores: number[];
 }
 
+/** Which rule decided a verdict: the fitted model's, or the deployment's own calibration. */
+export type VerdictRule = 'model' | 'deployment';
+
+/** Pass two's calibration of the event's deployment and light mode (kernels/deployment-calibration.ts). */
+export interface EventCalibration {
+  status: 'applied' | 'too-few' | 'busy' | 'labels' | 'off';
+  /** The blank threshold in force for the deployment, and the fitted model's. */
+  cut: number;
+  fittedBlank: number;
+  /** Events the statistics used. */
+  usable: number;
+  light: string;
+}
+
 export interface EventDetail extends Omit<EventCard, 'thumb' | 'heat'> {
+  rule: VerdictRule;
+  /** Null for clips, and for events of a ledger whose second pass has not run. */
+  calibration: EventCalibration | null;
   engine_version: string;
   analysis_width: number;
   analysis_height: number;

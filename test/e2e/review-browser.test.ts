@@ -150,6 +150,13 @@ describe('review app in Chromium', () => {
     expect(detail.background).toBeGreaterThan(0);
     expect(await text('[data-testid=background-note]')).toBe(detail.deployment ? `compared with ${kept} of ${detail.background} neighbouring triggers` : `neighbouring triggers too unlike this one (${kept} of ${detail.background} matched): an animal that never moved cannot show`);
     expect(await text('[data-testid=light-note]')).toMatch(/^light moving over the scene \(cloud or shade\)/);
+    // Which rule decided the verdict, as pass two recorded it.
+    const rule = ledgerRows<{ rule: string; status: string }>(
+      "SELECT a.rule, c.status FROM analyses a JOIN events e ON e.id = a.event_id JOIN deployment_calibrations c ON c.deployment_id = e.deployment_id WHERE a.event_id = ?",
+      burst.id,
+    )[0];
+    expect(await page.locator('[data-testid=rule-note]').getAttribute('data-rule')).toBe(rule.rule);
+    expect(await text('[data-testid=rule-note]')).toMatch(rule.rule === 'deployment' ? /^Likely blank by this deployment's own calibration/ : rule.status === 'too-few' ? /too few for a calibration of its own/ : /^Decided by the fitted model/);
     await page.keyboard.press('ArrowRight'); // past the last frame: stays
     expect(await text('[data-testid=frame-counter]')).toBe(`frame ${burst.n} of ${burst.n}`);
     expect(await page.locator('[data-testid=blob-layer]').count()).toBe(1);

@@ -21,6 +21,12 @@ export function reportProblems(r: unknown): string[] {
     if (typeof e.score !== 'number' || !(e.score >= 0 && e.score <= 1)) p.push(`${at}.score`);
     if (!Array.isArray(e.windows) || (e.windows as Record<string, unknown>[]).some((w) => typeof w.start_s !== 'number' || typeof w.end_s !== 'number' || typeof w.score !== 'number' || (w.end_s as number) < (w.start_s as number))) p.push(`${at}.windows`);
     if (!(e.decision === null || e.decision === 'keep' || e.decision === 'set-aside')) p.push(`${at}.decision`);
+    // Added fields (the contract allows additions): which rule decided the verdict.
+    if (!['model', 'deployment'].includes(e.rule as string)) p.push(`${at}.rule ${e.rule}`);
+  });
+  if (!Array.isArray(doc.calibrations)) p.push('calibrations is not an array');
+  ((doc.calibrations as Record<string, unknown>[]) ?? []).forEach((c, i) => {
+    if (typeof c.deployment !== 'string' || typeof c.light !== 'string' || !['applied', 'too-few', 'busy', 'labels', 'off'].includes(c.status as string) || typeof c.cut !== 'number' || typeof c.fittedBlank !== 'number' || (c.cut as number) < (c.fittedBlank as number) - 1e-9 && c.status !== 'labels') p.push(`calibrations[${i}]`);
   });
   ((doc.errors as Record<string, unknown>[]) ?? []).forEach((e, i) => {
     if (typeof e.file !== 'string' || typeof e.code !== 'string' || !/^E_[A-Z_]+$/.test(e.code as string) || typeof e.message !== 'string') p.push(`errors[${i}]`);

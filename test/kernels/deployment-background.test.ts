@@ -135,6 +135,35 @@ describe('deployment background from neighbouring triggers (ground truth: analyt
     expect(scoreEvent(MOTION_MODEL, placed).verdict).not.toBe(Verdict.likelyBlank);
   });
 
+  it('keeps a neighbour taken under another cloud shadow, and still paints no subject of the reference into the background', () => {
+    // A cloud shadow (light at 45%, a penumbra some 30 px wide) over the left 60% of the frame: most pixels darker, so
+    // the gain fit alone leaves a median disagreement far over the limit.
+    const shade = (x: number) => 1 - 0.55 / (1 + Math.exp((x - 0.6 * W) / 16));
+    const shadowed = render(fields, { noise: 2, seed: 31 });
+    for (let y = 0; y < H; y++) for (let x = 0; x < W; x++) for (let c = 0; c < 3; c++) {
+      const i = (y * W + x) * 3 + c;
+      shadowed.data[i] = Math.round(shadowed.data[i] * shade(x));
+    }
+    // A single image holding a large subject of low contrast (a grey animal against grey ground).
+    const animal = { x: 120, y: 64, r: 26 };
+    const reference = render(fields, { noise: 2, seed: 32 });
+    for (let y = 0; y < H; y++) for (let x = 0; x < W; x++) {
+      if (Math.hypot(x - animal.x, y - animal.y) >= animal.r) continue;
+      for (let c = 0; c < 3; c++) reference.data[(y * W + x) * 3 + c] = 100;
+    }
+    const plain = [33, 34, 35].map((seed) => render(fields, { noise: 2, seed }));
+    const db = deploymentBackground(reference, [plain[0], shadowed, plain[1], plain[2]], { minKept: 3 });
+    const limit = 2 * Math.min(...db.fits.map((f) => f.relitDisagreement)) + 1;
+    expect(db.fits[1].disagreement).toBeGreaterThan(limit);
+    expect(db.fits[1].relitDisagreement).toBeLessThanOrEqual(limit);
+    expect(db.fits.map((f) => f.kept)).toEqual([true, true, true, true]);
+    // Where relighting did not help, the two measures are the same.
+    expect(db.fits.filter((_, i) => i !== 1).every((f) => f.relitDisagreement <= f.disagreement)).toBe(true);
+    // The background is the place, not the subject: the median of the neighbours as fitted.
+    expect(meanAbs(reference, clean, 4, animal)).toBeGreaterThan(20);
+    expect(meanAbs(db.frame!, clean, 4, animal)).toBeLessThan(6);
+  });
+
   it('rejects bad input with a stable code, naming the parameter', () => {
     const small = makeRgb(W, H - 1);
     expect(() => deploymentBackground(clean, [neighbours[0], small])).toThrowError(expect.objectContaining({ code: ErrorCode.sizeMismatch, message: expect.stringMatching(/neighbours\[1\]/) }));

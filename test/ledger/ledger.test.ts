@@ -19,6 +19,19 @@ describe('openLedger', () => {
     expect(again.pragma('user_version', { simple: true })).toBe(MIGRATIONS.length);
     again.close();
   });
+  it('brings a ledger an older version wrote up to date when it is opened only to be read', () => {
+    const f = path.join(tempDir(), 'old.ledger');
+    const old = new Database(f);
+    for (let v = 0; v < MIGRATIONS.length - 1; v++) old.exec(MIGRATIONS[v]);
+    old.pragma(`user_version = ${MIGRATIONS.length - 1}`);
+    old.pragma('application_id = 0x4d565346');
+    old.close();
+    const db = openLedger(f, { readonly: true });
+    expect(db.readonly).toBe(true);
+    expect(db.pragma('user_version', { simple: true })).toBe(MIGRATIONS.length);
+    expect(db.prepare("SELECT count(*) AS n FROM sqlite_master WHERE name = 'deployment_calibrations'").get()).toEqual({ n: 1 });
+    db.close();
+  });
   it('keeps the decisions log append-only', () => {
     const db = openLedger(path.join(tempDir(), 'b.ledger'), { create: true });
     db.prepare("INSERT INTO decisions (event_id, decision, source, at) VALUES ('e1', 'keep', 'single', '2025-01-01T00:00:00Z')").run();

@@ -1,5 +1,5 @@
 /** One event opened from the grid: header facts, then the burst or the clip view. */
-import type { Decision } from '../../../../../../src/shared/review-api';
+import type { Decision, EventDetail } from '../../../../../../src/shared/review-api';
 import type { Action } from '../../../shared/keys';
 import { DECISION_LABEL, VERDICT_LABEL, shortTime } from '../../../shared/format';
 import { useEventDetail } from '../hooks/use-event-detail';
@@ -34,8 +34,32 @@ export function EventDetailView({ id, heat, position, decision: current, problem
         <span>{shortTime(event.start)}</span>
         <span className="card-dim">engine {event.engine_version}</span>
       </div>
+      <RuleNote event={event} />
       <EventProblems problems={problems.filter((p) => p.eventIds.includes(event.id))} />
       {event.kind === 'clip' ? <ClipView key={event.id} event={event} bindActions={bindActions} /> : <BurstView key={event.id} event={event} heat={heat} bindActions={bindActions} />}
+    </div>
+  );
+}
+
+/** Which rule decided the verdict, said plainly (kernels/deployment-calibration.ts). A call the
+ *  deployment's own statistics made, not the fitted model, is marked for a look before it is
+ *  set aside: low-scoring animals fall in the same band of scores. */
+function RuleNote({ event }: { event: EventDetail }) {
+  const c = event.calibration;
+  if (!c) return null;
+  const t = (v: number) => v.toFixed(3);
+  let text: string;
+  if (event.rule === 'deployment') {
+    text = `Likely blank by this deployment's own calibration: here, scores below ${t(c.cut)} are what its usual false triggers score (the fitted model alone calls blank below ${t(c.fittedBlank)}). An animal that scored low can hide in this band: look before setting it aside.`;
+  } else if (c.status === 'off') text = `Decided by the fitted model (blank below ${t(c.fittedBlank)}).`;
+  else if (c.status === 'labels') text = `Decided by the label calibration made from people's decisions (blank below ${t(c.cut)}).`;
+  else if (c.status === 'too-few') text = `Decided by the fitted model (blank below ${t(c.fittedBlank)}): ${c.usable} trigger(s) of this deployment are too few for a calibration of its own.`;
+  else if (c.status === 'busy') text = `Decided by the fitted model (blank below ${t(c.fittedBlank)}): most of this deployment's triggers score as animals do, so its own calibration steps back.`;
+  else if (c.cut > c.fittedBlank) text = `Decided by the fitted model (blank below ${t(c.fittedBlank)}); this deployment's own calibration (blank below ${t(c.cut)}) did not change it.`;
+  else text = `Decided by the fitted model (blank below ${t(c.fittedBlank)}); this deployment's own triggers gave no reason to move it.`;
+  return (
+    <div className={`rule-note${event.rule === 'deployment' ? ' rule-deployment' : ''}`} data-testid="rule-note" data-rule={event.rule}>
+      {text}
     </div>
   );
 }
