@@ -62,7 +62,8 @@ export async function reviewRoute(req: Request, parts: string[], url: URL, l: Op
     only('GET');
     const m = q.mediaFile(Number(id));
     if (!m) throw notFound(`no media ${id}`);
-    return fileResponse(path.join(m.root, m.rel_path), req, 'private, max-age=60');
+    // No caching: the same id points at the set-aside folder after an apply and back after an undo.
+    return fileResponse(m.moved_to ?? path.join(m.root, m.rel_path), req, 'no-cache');
   }
   if (what === 'deployments' && parts.length === 2) {
     only('GET');

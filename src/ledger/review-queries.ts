@@ -54,7 +54,13 @@ export function createReviewQueries(db: Ledger) {
   const windowsOf = db.prepare<[number], { start_s: number; end_s: number; score: number }>('SELECT start_s, end_s, score FROM windows WHERE analysis_id = ? ORDER BY start_s');
   const previewsOf = db.prepare<[number], { kind: string; position: number; width: number; height: number; time_s: number | null }>('SELECT kind, position, width, height, time_s FROM previews WHERE analysis_id = ? ORDER BY kind, position');
   const previewPath = db.prepare<[string, string, number], { path: string }>('SELECT p.path FROM previews p JOIN analyses a ON a.id = p.analysis_id WHERE a.event_id = ? AND p.kind = ? AND p.position = ?');
-  const mediaFile = db.prepare<[number], { root: string; rel_path: string; kind: string; size: number; format: string | null }>('SELECT r.path AS root, m.rel_path, m.kind, m.size, m.format FROM media m JOIN roots r ON r.id = m.root_id WHERE m.id = ?');
+  // Where an apply moved the file, the journal knows where it is now (a move's `dest`, while it
+  // is `moved`): the audit exists to look at exactly those files.
+  const mediaFile = db.prepare<[number], { root: string; rel_path: string; kind: string; size: number; format: string | null; moved_to: string | null }>(
+    `SELECT r.path AS root, m.rel_path, m.kind, m.size, m.format,
+       (SELECT v.dest FROM moves v WHERE v.media_id = m.id AND v.state = 'moved' ORDER BY v.id DESC LIMIT 1) AS moved_to
+     FROM media m JOIN roots r ON r.id = m.root_id WHERE m.id = ?`,
+  );
   const snapshot = db.prepare<[string], { score: number; verdict: string; engine_version: string; decision: string | null }>(`SELECT a.score, a.verdict, a.engine_version, d.decision FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} WHERE e.id = ?`);
   const insertDecision = db.prepare('INSERT INTO decisions (event_id, decision, source, who, at, score, verdict, engine_version, batch, note) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)');
   const lastBatch = db.prepare<[], { batch: string }>("SELECT batch FROM decisions WHERE source != 'undo' AND batch IS NOT NULL AND batch NOT IN (SELECT note FROM decisions WHERE source = 'undo' AND note IS NOT NULL) ORDER BY id DESC LIMIT 1");

@@ -3,7 +3,7 @@
  * apply and undo as background tasks followed on their event stream, the applies list, audits
  * drawn, answered and reported, calibration's refusal, exports and their refusals, and bad input.
  */
-import { cpSync, existsSync, readdirSync } from 'node:fs';
+import { cpSync, existsSync, readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createHandler, type Handler } from '../../src/api/handler.js';
@@ -57,11 +57,22 @@ describe('apply and undo over the API', () => {
     const done = await untilTaskDone();
     expect(done).toMatchObject({ kind: 'apply', status: 'done' });
     expect(readdirSync(path.join(aside, 'cards', 'ridge-trail'))).toHaveLength(plan.files);
+    // A set-aside event's frames still open in the app: the file is served from where it went.
+    const movedEvent = (await (await call('/api/events?decision=set-aside&limit=1')).json()).events[0];
+    const media = (await (await call(`/api/events/${movedEvent.id}`)).json()).media[0];
+    expect(existsSync(path.join(cards, media.rel_path))).toBe(false);
+    const served = await call(`/api/media/${media.id}`);
+    expect(served.status).toBe(200);
+    expect(Buffer.from(await served.arrayBuffer()).equals(readFileSync(path.join(aside, 'cards', media.rel_path)))).toBe(true);
     const applies = await (await call('/api/applies')).json();
     expect(applies[0]).toMatchObject({ moved: plan.files, who: 'api', status: 'done' });
     expect((await call('/api/undo', { apply: applies[0].id })).status).toBe(202);
     expect(await untilTaskDone()).toMatchObject({ kind: 'undo', status: 'done' });
     expect(readdirSync(path.join(cards, 'ridge-trail'))).toHaveLength(32);
+    // And after the undo, from its own place again.
+    const back = await call(`/api/media/${media.id}`);
+    expect(back.status).toBe(200);
+    expect(Buffer.from(await back.arrayBuffer()).equals(readFileSync(path.join(cards, media.rel_path)))).toBe(true);
   });
   it('refuses a set-aside folder inside the scanned folder with its code, and bad input with 400', async () => {
     // The plan says what the move would say (issue 23, item 3: it used to list the files).
