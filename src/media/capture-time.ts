@@ -67,3 +67,20 @@ export function parseVideoCreationTime(text: unknown): CaptureTime | undefined {
   if (!Number.isFinite(t) || t < Date.UTC(1971, 0, 1)) return undefined; // 1970 / 1904 epochs mean "unset"
   return { iso: new Date(Math.floor(t / 1000) * 1000).toISOString().replace('.000Z', 'Z'), sortMs: t, source: TimeSource.videoTag };
 }
+
+const ISO_RE = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2}):(\d{2})(?:\.(\d+))?(Z|[+-]\d{2}:\d{2})?$/;
+
+/**
+ * A capture time `seconds` later, in the same form (the same offset, or none: a local wall-clock
+ * reading stays one). What a clip's end is: its start plus its duration. Milliseconds are kept
+ * when there are any. Undefined for text that is not such an ISO time.
+ */
+export function isoPlusSeconds(iso: string, seconds: number): string | undefined {
+  const m = ISO_RE.exec(iso);
+  if (!m || !Number.isFinite(seconds)) return undefined;
+  const [Y, Mo, D, h, mi, s] = m.slice(1, 7).map(Number);
+  const frac = m[7] ? Number(`0.${m[7]}`) : 0;
+  const t = new Date(Date.UTC(Y, Mo - 1, D, h, mi, s) + Math.round((frac + seconds) * 1000));
+  const ms = t.getUTCMilliseconds();
+  return `${t.getUTCFullYear()}-${pad(t.getUTCMonth() + 1)}-${pad(t.getUTCDate())}T${pad(t.getUTCHours())}:${pad(t.getUTCMinutes())}:${pad(t.getUTCSeconds())}${ms ? `.${pad(ms, 3)}` : ''}${m[8] ?? ''}`;
+}

@@ -21,6 +21,7 @@ import { safeOutcome } from './safe-outcome.js';
 import { deploymentStrip } from './deployment-strip.js';
 import { MIN_CONSENSUS_FRAMES } from '../kernels/data-strip.js';
 import { calibrationNote, deploymentPass } from './deployment-pass.js';
+import { isoPlusSeconds } from '../media/capture-time.js';
 
 export interface ScanOptions {
   roots: string[];
@@ -152,7 +153,9 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
           // gives the events near its edge other neighbours, and only those are screened again.
           const near = neighbourMap.get(g) ?? [];
           const plan: EventPlan = {
-            id, deployment_id: dep, kind: g.kind, start_time: items[0].capture_time, end_time: items[items.length - 1].capture_time,
+            // A clip ends its duration after it starts (the capture time is its start).
+            id, deployment_id: dep, kind: g.kind, start_time: items[0].capture_time,
+            end_time: (g.kind === 'clip' && items[0].duration_s ? isoPlusSeconds(items[0].capture_time, items[0].duration_s) : undefined) ?? items[items.length - 1].capture_time,
             start_sort_ms: items[0].capture_sort_ms,
             input_hash: hashOf([...items.map((m) => `${m.rel_path}:${m.fingerprint}`), ...(g.kind === 'clip' ? [] : [...stripKey, ...near.map((m) => `near:${m.rel_path}:${m.fingerprint}`)])]),
             media: items.map((m) => m.id),

@@ -7,7 +7,7 @@ import sharp from 'sharp';
 import { writeFileSync, utimesSync } from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { parseExifDateTime, fileTime } from '../../src/media/capture-time.js';
+import { parseExifDateTime, fileTime, isoPlusSeconds } from '../../src/media/capture-time.js';
 import { readImageInfo } from '../../src/media/read-image-info.js';
 import { tempDir } from '../helpers/cli.js';
 
@@ -55,5 +55,14 @@ describe('image info from files written by sharp', () => {
     const f = path.join(dir, 'rot.jpg');
     await sharp({ create: { width: 60, height: 40, channels: 3, background: '#888' } }).jpeg().withMetadata({ orientation: 6 }).toFile(f);
     expect(await readImageInfo(f, 'rot.jpg', 0)).toMatchObject({ width: 40, height: 60 });
+  });
+});
+
+describe('isoPlusSeconds', () => {
+  it('adds seconds in the same form: offset kept, a local reading stays local, milliseconds only when there are any', () => {
+    expect(isoPlusSeconds('2025-06-02T09:30:00Z', 24)).toBe('2025-06-02T09:30:24Z');
+    expect(isoPlusSeconds('2025-06-01T23:59:50', 12.5)).toBe('2025-06-02T00:00:02.500');
+    expect(isoPlusSeconds('2024-02-28T23:59:59.250+02:00', 0.75)).toBe('2024-02-29T00:00:00+02:00');
+    expect(isoPlusSeconds('2025:06:01 10:00:00', 1)).toBeUndefined();
   });
 });

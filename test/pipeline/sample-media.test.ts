@@ -56,6 +56,8 @@ describe('scan of sample-media', () => {
     expect(clip.files).toEqual(['reef-station/reef-drop-01.mp4']);
     expect(clip.windows.length).toBeGreaterThan(0);
     for (const w of clip.windows) expect(w.end_s).toBeLessThanOrEqual(24.01);
+    // A clip lasts its duration: it ends 24 s after it starts (ffprobe reads 24.0 s).
+    expect(Date.parse(clip.end) - Date.parse(clip.start)).toBe(24_000);
   });
 });
 
