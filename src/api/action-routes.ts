@@ -26,7 +26,7 @@ import { createAuditStore } from '../ledger/audit-store.js';
 import { clipWindows, exportDeployments, exportEvents, exportMedia } from '../ledger/export-rows.js';
 import { applyDecisions } from '../pipeline/apply.js';
 import { undoApply } from '../pipeline/undo-apply.js';
-import { answerAudit, drawAudit, loadAuditReport } from '../pipeline/audit.js';
+import { answerAudit, drawAudit, loadAuditReport, setAsideCount, zeroMissPlan } from '../pipeline/audit.js';
 import { calibrate } from '../pipeline/calibrate.js';
 import { mediaCsv } from '../pipeline/export-csv.js';
 import { buildCamtrap, writePackage } from '../pipeline/export-camtrap.js';
@@ -34,7 +34,6 @@ import { checkOutput, writeOutput } from '../pipeline/output-guard.js';
 import { readDeploymentsTable } from '../pipeline/deployments-table.js';
 import { cutWindows } from '../pipeline/cut-windows.js';
 import { ENGINE_VERSION } from '../pipeline/engine-version.js';
-import { sampleSizeForZeroMisses } from '../shared/stats/binomial.js';
 import { ApiErrorCode, HttpError, badRequest, json } from './api-errors.js';
 import { EVENT_ID_RE, readJson, userPath, who } from './request-params.js';
 import type { TaskJobs } from './task-jobs.js';
@@ -81,7 +80,8 @@ export async function actionRoute(req: Request, parts: string[], url: URL, ledge
     only('GET');
     const tolerance = optional(q.get('tolerance'), () => num(q.get('tolerance'), 'tolerance', 1e-6, 0.5)) ?? 0.01;
     const alpha = optional(q.get('alpha'), () => num(q.get('alpha'), 'alpha', 1e-6, 0.5)) ?? 0.05;
-    return json({ tolerance, alpha, sample: sampleSizeForZeroMisses(tolerance, alpha) });
+    const population = setAsideCount(ledger);
+    return json({ tolerance, alpha, population, sample: zeroMissPlan(tolerance, alpha, population) });
   }
   if (what === 'audits' && parts.length === 2) {
     if (req.method.toUpperCase() === 'POST') {

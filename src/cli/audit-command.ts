@@ -2,8 +2,7 @@
 import os from 'node:os';
 import { parse, numberFlag } from './args.js';
 import { ExitCode, usageError } from './cli-errors.js';
-import { answerAudit, drawAudit, loadAuditReport, type AuditReport } from '../pipeline/audit.js';
-import { sampleSizeForZeroMisses } from '../shared/stats/binomial.js';
+import { answerAudit, drawAudit, loadAuditReport, setAsideCount, zeroMissPlan, type AuditReport } from '../pipeline/audit.js';
 
 export const AUDIT_HELP = `Usage: movesift audit <ledger> [options]
 
@@ -12,7 +11,8 @@ answers only "animal present: yes or no" (in the app's audit view, or with --ans
 report says how many of all set-aside events may hold an animal, with an exact 95% interval.
 An audit passes only when the upper bound is below the tolerance. It blocks nothing.
 
-  movesift audit <ledger> --plan [--tolerance 0.01]        how many to check
+  movesift audit <ledger> --plan [--tolerance 0.01]        how many to check (never more than are
+                                                            set aside; without a ledger, for a large set)
   movesift audit <ledger> --sample <n> [--strata 3]        draw a sample (simple random by default;
                                                             --strata splits by score band)
   movesift audit <ledger> --answer <event>=yes|no ...       record answers (repeatable)
@@ -49,8 +49,13 @@ export async function auditCommand(argv: string[]): Promise<number> {
   const tolerance = numberFlag('tolerance', values.tolerance, 1e-6, 0.5) ?? 0.01;
   const alpha = numberFlag('alpha', values.alpha, 1e-6, 0.5) ?? 0.05;
   if (values.plan) {
-    const n = sampleSizeForZeroMisses(tolerance, alpha);
-    console.log(`Check ${n} randomly drawn set-aside events. If none holds an animal, at ${Math.round((1 - alpha) * 100)}% confidence fewer than ${pct(tolerance)} of all set-aside events do (n >= ln(${alpha}) / ln(1 - ${tolerance})). Any animal found needs a larger sample to pass.`);
+    if (positionals.length > 1) throw usageError('audit --plan: give at most one ledger. See `movesift audit --help`.');
+    const population = positionals.length ? setAsideCount(positionals[0]) : undefined;
+    const n = zeroMissPlan(tolerance, alpha, population);
+    const conf = `${Math.round((1 - alpha) * 100)}%`;
+    if (population !== undefined && n >= population) console.log(`Check all ${population} set-aside events: so few that a sample cannot show fewer than ${pct(tolerance)} hold an animal; with every one checked and none an animal, none does.`);
+    else if (population !== undefined && n > 0.05 * population) console.log(`Check ${n} of the ${population} set-aside events, drawn at random. If none holds an animal, at ${conf} confidence fewer than ${pct(tolerance)} of them do (exact bound for a population this small). Any animal found needs a larger sample to pass.`);
+    else console.log(`Check ${n} randomly drawn set-aside events${population !== undefined ? ` of ${population}` : ''}. If none holds an animal, at ${conf} confidence fewer than ${pct(tolerance)} of all set-aside events do (n >= ln(${alpha}) / ln(1 - ${tolerance})). Any animal found needs a larger sample to pass.`);
     return ExitCode.done;
   }
   if (positionals.length !== 1) throw usageError('audit: give exactly one ledger. See `movesift audit --help`.');
@@ -60,7 +65,8 @@ export async function auditCommand(argv: string[]): Promise<number> {
   if (values.sample !== undefined) {
     const sample = numberFlag('sample', values.sample, 1, 1e7, true)!;
     const { id, audit } = drawAudit(ledger, { sample, seed: numberFlag('seed', values.seed, 1, 2 ** 31, true), tolerance, alpha, strata: numberFlag('strata', values.strata, 1, 20, true), who });
-    console.log(`Audit ${id}: drew ${audit.sample_size} of ${audit.population} set-aside events (seed ${audit.seed}). Answer them in the app (movesift review ${ledger}, key v) or with --answer <event>=yes|no.`);
+    const all = sample > audit.population ? ` (you asked for ${sample}; that is every one of them)` : '';
+    console.log(`Audit ${id}: drew ${audit.sample_size} of ${audit.population} set-aside events${all} (seed ${audit.seed}). Answer them in the app (movesift review ${ledger}, key v) or with --answer <event>=yes|no.`);
     return ExitCode.done;
   }
   if (values.answer?.length) {

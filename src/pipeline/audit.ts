@@ -92,25 +92,44 @@ export function answerAudit(ledger: string, auditId: number, answers: Array<{ ev
 
 export type { AuditReport };
 
+/** The report's bounds switch to the finite population's when the sample is over this share of it. */
+const FINITE_SHARE = 0.05;
+
+/** The one-sided upper bound (1 - alpha) on the share of the N set-aside events holding an
+ *  animal, from k found in n answered: exact hypergeometric when n is over 5% of N, else
+ *  Clopper-Pearson; 1 with nothing answered. */
+export function shareUpperBound(k: number, n: number, N: number, alpha: number): number {
+  if (n === 0) return 1;
+  return n > FINITE_SHARE * N ? hypergeometricBounds(k, N, n, alpha).upper / N : clopperPearsonUpper(k, n, alpha);
+}
+
+/**
+ * Fewest checks that can pass with no animal found: the smallest n whose upper bound, computed
+ * as the report computes it, is under the tolerance. Without a population (or a large one) that
+ * is ln(alpha) / ln(1 - tolerance); a population too small for that is checked whole or nearly
+ * (with every event checked and none an animal, the bound is 0), and the plan never asks for
+ * more events than exist.
+ */
+export function zeroMissPlan(tolerance: number, alpha: number, population?: number): number {
+  const n0 = sampleSizeForZeroMisses(tolerance, alpha);
+  if (population === undefined || n0 <= FINITE_SHARE * population) return n0;
+  for (let n = 1; n < population; n++) if (shareUpperBound(0, n, population, alpha) < tolerance) return n;
+  return population;
+}
+
 export function reportAudit(audit: AuditRow, items: AuditItemRow[]): AuditReport {
   const answered = items.filter((i) => i.animal !== null);
   const k = answered.filter((i) => i.animal === 1).length;
   const n = answered.length;
   const N = audit.population;
-  const finite = n > 0.05 * N;
+  const finite = n > FINITE_SHARE * N;
   let share: AuditReport['share'];
-  let upperOne: number;
-  if (n === 0) {
-    share = { estimate: 0, lower: 0, upper: 1, method: finite ? 'hypergeometric' : 'clopper-pearson' };
-    upperOne = 1;
-  } else if (finite) {
+  if (n === 0) share = { estimate: 0, lower: 0, upper: 1, method: finite ? 'hypergeometric' : 'clopper-pearson' };
+  else if (finite) {
     const two = hypergeometricBounds(k, N, n, audit.alpha / 2);
     share = { estimate: k / n, lower: two.lower / N, upper: two.upper / N, method: 'hypergeometric' };
-    upperOne = hypergeometricBounds(k, N, n, audit.alpha).upper / N;
-  } else {
-    share = { ...clopperPearson(k, n, audit.alpha), method: 'clopper-pearson' };
-    upperOne = clopperPearsonUpper(k, n, audit.alpha);
-  }
+  } else share = { ...clopperPearson(k, n, audit.alpha), method: 'clopper-pearson' };
+  const upperOne = shareUpperBound(k, n, N, audit.alpha);
   const strata = (JSON.parse(audit.strata) as Stratum[]).map((s) => {
     const mine = answered.filter((i) => i.stratum === s.band);
     return { ...s, answered: mine.length, animals: mine.filter((i) => i.animal === 1).length };
@@ -130,10 +149,20 @@ export function reportAudit(audit: AuditRow, items: AuditItemRow[]): AuditReport
     shareUpperOneSided: upperOne,
     missedEvents: { estimate: share.estimate * N, lower: Math.floor(share.lower * N + 1e-9), upper: Math.ceil(share.upper * N - 1e-9) },
     verdict: n < audit.sample_size ? 'incomplete' : upperOne < audit.tolerance ? 'pass' : 'fail',
-    zeroMissSampleSize: sampleSizeForZeroMisses(audit.tolerance, audit.alpha),
+    zeroMissSampleSize: zeroMissPlan(audit.tolerance, audit.alpha, N),
     strata,
     items,
   };
+}
+
+/** How many set-aside events there are to audit now (the plan's population). */
+export function setAsideCount(ledger: string): number {
+  const db = openLedger(ledger);
+  try {
+    return createAuditStore(db).population().length;
+  } finally {
+    db.close();
+  }
 }
 
 export function loadAuditReport(ledger: string, id?: number): AuditReport {

@@ -88,8 +88,11 @@ describe('apply and undo over the API', () => {
 
 describe('audits, calibration and exports over the API', () => {
   it('draws an audit, records answers and reports', async () => {
+    // The plan is for this ledger's set-aside events: too few for 59 (ln 0.05 / ln 0.95), so all.
     const plan = await (await call('/api/audits/plan?tolerance=0.05')).json();
-    expect(plan.sample).toBe(59);
+    expect(plan.population).toBeGreaterThan(0);
+    expect(plan.population).toBeLessThan(59);
+    expect(plan.sample).toBe(plan.population);
     const r = await call('/api/audits', { sample: 2, who: 'lead' });
     expect(r.status).toBe(201);
     const audit = await r.json();

@@ -11,7 +11,7 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { runCli, tempDir } from '../helpers/cli.js';
 import { clopperPearsonUpper } from '../../src/shared/stats/binomial.js';
 import { hypergeometricBounds } from '../../src/shared/stats/hypergeometric.js';
-import { reportAudit } from '../../src/pipeline/audit.js';
+import { reportAudit, zeroMissPlan } from '../../src/pipeline/audit.js';
 
 describe('movesift audit', () => {
   const ledger = path.join(tempDir('movesift-audit-'), 'a.ledger');
@@ -22,6 +22,28 @@ describe('movesift audit', () => {
 
   it('plans 299 checks for a 1% tolerance', () => {
     expect(runCli(['audit', '--plan', '--tolerance', '0.01']).stdout).toContain('Check 299 ');
+  });
+
+  it('plans for a finite population by the exact hypergeometric bound (pure; brute-force reference)', () => {
+    // Brute force: with none of n checks an animal, the report passes when no M >= tolerance * N
+    // animals among N leaves P(X = 0) above alpha; P(X = 0 | M) = prod_{i<n} (N - M - i) / (N - i).
+    const brute = (tol: number, alpha: number, N: number) => {
+      const M = Math.ceil(tol * N - 1e-12);
+      for (let n = 1; n <= N; n++) {
+        if (n <= 0.05 * N) {
+          if (clopperPearsonUpper(0, n, alpha) < tol) return n;
+          continue;
+        }
+        let p = 1;
+        for (let i = 0; i < n; i++) p *= (N - M - i) / (N - i);
+        if (p <= alpha) return n;
+      }
+      return N;
+    };
+    for (const [tol, N] of [[0.05, 200], [0.01, 11], [0.02, 500], [0.01, 1000], [0.1, 30]] as const) expect(zeroMissPlan(tol, 0.05, N), `${tol} of ${N}`).toBe(brute(tol, 0.05, N));
+    expect(zeroMissPlan(0.01, 0.05, 11)).toBe(11);
+    expect(zeroMissPlan(0.01, 0.05, 100_000)).toBe(299);
+    expect(zeroMissPlan(0.01, 0.05)).toBe(299);
   });
 
   it('refuses to draw from a ledger with nothing set aside', () => {
@@ -78,6 +100,27 @@ describe('movesift audit', () => {
     expect(wrong.code).toBe(2);
     expect(wrong.stderr).toContain('was not drawn');
     expect(runCli(['audit', ledger, '--answer', 'nonsense']).code).toBe(2);
+  });
+
+  it('never plans more checks than there are set-aside events, and says when all must be checked', () => {
+    const db = new Database(ledger, { readonly: true });
+    const N = (db.prepare("SELECT count(*) AS n FROM latest_decisions WHERE decision = 'set-aside'").get() as { n: number }).n;
+    db.close();
+    expect(N).toBeGreaterThan(5);
+    expect(N).toBeLessThan(40);
+    const plan = runCli(['audit', ledger, '--plan', '--tolerance', '0.01']);
+    expect(plan.code, plan.stderr).toBe(0);
+    expect(plan.stdout).toContain(`Check all ${N} set-aside events`);
+    const drawn = runCli(['audit', ledger, '--sample', '299', '--seed', '3']);
+    expect(drawn.stdout).toContain(`drew ${N} of ${N} set-aside events (you asked for 299; that is every one of them)`);
+    // Five answered "no": still incomplete, and the checks still needed are the population, not 299.
+    const d2 = new Database(ledger, { readonly: true });
+    const ids = (d2.prepare('SELECT event_id FROM audit_items WHERE audit_id = (SELECT max(id) FROM audits) ORDER BY position LIMIT 5').all() as Array<{ event_id: string }>).map((r) => r.event_id);
+    d2.close();
+    const r = runCli(['audit', ledger, ...ids.flatMap((e) => ['--answer', `${e}=no`]), '--json']);
+    const report = JSON.parse(r.stdout.slice(r.stdout.indexOf('{')));
+    expect(report.verdict).toBe('incomplete');
+    expect(report.zeroMissSampleSize).toBe(N);
   });
 
   it('the report passes on a clean large sample and fails on the same with one animal (pure, no ledger)', () => {
