@@ -8,7 +8,8 @@
  *   GET  /api/apply/plan?to=<folder>          what apply would move, and how many bytes
  *   POST /api/apply {to, copy?, who?}          start apply (task)
  *   GET  /api/applies                          every apply and what it has set aside now
- *   POST /api/undo {apply?}                    start undo of one apply or all (task)
+ *   POST /api/undo {apply?, events?}           start undo of one apply or all, or of these events' files (task)
+ *   GET  /api/moved?events=<id,...>            which of these events have files in a set-aside folder
  *   GET  /api/audits                           audits with their answered counts
  *   GET  /api/audits/plan?tolerance&alpha      checks needed with no animal found
  *   POST /api/audits {sample, strata?, tolerance?, seed?, who?}
@@ -45,6 +46,10 @@ function num(v: unknown, name: string, lo: number, hi: number, integer = false):
   if (typeof x !== 'number' || !Number.isFinite(x) || x < lo || x > hi || (integer && !Number.isInteger(x))) throw badRequest(`${name}: wanted ${integer ? 'integer' : 'number'} ${lo}-${hi}, got ${JSON.stringify(v)}`);
   return x;
 }
+function eventIdList(v: unknown): string[] {
+  if (!Array.isArray(v) || v.length > 100_000 || v.some((e) => typeof e !== 'string' || !/^e[0-9a-f]{12}$/.test(e))) throw badRequest(`events: wanted a list of event ids, got ${JSON.stringify(v).slice(0, 80)}`);
+  return v as string[];
+}
 const optional = <T>(v: unknown, f: () => T): T | undefined => (v === undefined || v === null || v === '' ? undefined : f());
 
 export async function actionRoute(req: Request, parts: string[], url: URL, ledger: string, tasks: TaskJobs, only: (m: string) => void): Promise<Response | undefined> {
@@ -74,7 +79,19 @@ export async function actionRoute(req: Request, parts: string[], url: URL, ledge
     only('POST');
     const b = await readJson(req);
     const applyId = optional(b.apply, () => num(b.apply, 'apply', 1, 1e12, true));
-    return json(tasks.start('undo', (report) => undoApply({ ledger, applyId, onFile: (d, t, f) => report(d, t, f) })), 202);
+    const events = optional(b.events, () => eventIdList(b.events));
+    return json(tasks.start('undo', (report) => undoApply({ ledger, applyId, events, onFile: (d, t, f) => report(d, t, f) })), 202);
+  }
+  if (what === 'moved' && parts.length === 2) {
+    only('GET');
+    const ids = eventIdList((q.get('events') ?? '').split(',').filter(Boolean));
+    const db = openLedger(ledger);
+    try {
+      const moved = createMoveStore(db).movedOfEvents(ids);
+      return json({ events: [...new Set(moved.map((m) => m.event_id))], files: moved.length, applies: [...new Set(moved.map((m) => m.apply_id))] });
+    } finally {
+      db.close();
+    }
   }
   if (what === 'audits' && id === 'plan' && parts.length === 3) {
     only('GET');

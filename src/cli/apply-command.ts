@@ -23,13 +23,15 @@ Options:
   --who <name>     recorded with the apply                                  default: the user name
   -h, --help       this text`;
 
-export const UNDO_HELP = `Usage: movesift undo <ledger> [--apply <id>] [--list]
+export const UNDO_HELP = `Usage: movesift undo <ledger> [--apply <id>] [--events <id,...>] [--list]
 
 Puts back every file that apply moved (all applies, or one), each checked against the SHA-256
 taken before it moved. A file changed while set aside is left where it is and listed.
 
 Options:
   --apply <id>     undo only this apply
+  --events <ids>   put back only these events' files (comma-separated event ids: events kept
+                   after their files were set aside)
   --list           list the applies and how many files each has in the set-aside folder
   -h, --help       this text`;
 
@@ -60,7 +62,7 @@ export async function applyCommand(argv: string[]): Promise<number> {
 }
 
 export async function undoCommand(argv: string[]): Promise<number> {
-  const { values, positionals } = parse<{ apply?: string; list?: boolean }>(argv, { apply: { type: 'string' }, list: { type: 'boolean' } }, 'undo');
+  const { values, positionals } = parse<{ apply?: string; list?: boolean; events?: string }>(argv, { apply: { type: 'string' }, list: { type: 'boolean' }, events: { type: 'string' } }, 'undo');
   if (values.help) return console.log(UNDO_HELP), ExitCode.done;
   if (positionals.length !== 1) throw usageError('undo: give exactly one ledger. See `movesift undo --help`.');
   if (values.list) {
@@ -75,7 +77,9 @@ export async function undoCommand(argv: string[]): Promise<number> {
     }
   }
   const applyId = numberFlag('apply', values.apply, 1, 1e12, true);
-  const s = await undoApply({ ledger: positionals[0], applyId });
+  const events = values.events?.split(',').map((e) => e.trim()).filter(Boolean);
+  if (events?.some((e) => !/^e[0-9a-f]{12}$/.test(e))) throw usageError(`undo --events: wanted event ids like e0123456789ab, comma-separated, got ${JSON.stringify(values.events)}`);
+  const s = await undoApply({ ledger: positionals[0], applyId, events });
   for (const p of s.recovered.problems) console.error(`movesift undo: ${p}`);
   console.log(`Put back ${s.restored} file(s)${s.applies.length ? ` from apply ${s.applies.join(', ')}` : ''}.`);
   for (const p of s.problems) console.error(`  not put back (${p.code}): ${p.message}`);

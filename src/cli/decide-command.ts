@@ -3,6 +3,7 @@ import os from 'node:os';
 import { parse, numberFlag } from './args.js';
 import { ExitCode, usageError } from './cli-errors.js';
 import { openLedger } from '../ledger/open-ledger.js';
+import { createMoveStore } from '../ledger/move-store.js';
 import { createReviewQueries } from '../ledger/review-queries.js';
 
 export const DECIDE_HELP = `Usage: movesift decide <ledger> --keep|--set-aside [filters]
@@ -52,6 +53,16 @@ export async function decideCommand(argv: string[]): Promise<number> {
     }
     const r = q.decide(ids, decision, 'command', values.who ?? os.userInfo().username);
     console.log(`${decision === 'keep' ? 'Kept' : 'Set aside'} ${r.written} event(s); ${r.changed} changed decision.${decision === 'set-aside' ? ' Nothing was moved: `movesift apply` moves set-aside media, and only when run.' : ''}`);
+    if (decision === 'keep') {
+      // Kept now, but an earlier apply moved their files: say so, and how to bring them back
+      // (deciding never moves a file).
+      const moved = createMoveStore(db).movedOfEvents(ids);
+      const events = [...new Set(moved.map((m) => m.event_id))];
+      if (moved.length) {
+        console.log(`${events.length} of the kept event(s) have ${moved.length} file(s) in the set-aside folder still (moved by apply ${[...new Set(moved.map((m) => m.apply_id))].join(', ')}). To put them back:`);
+        console.log(`  movesift undo ${positionals[0]} --events ${events.join(',')}`);
+      }
+    }
     return ExitCode.done;
   } finally {
     db.close();

@@ -67,6 +67,7 @@ export function createMoveStore(db: Ledger) {
     unfinished: db.prepare<[], MoveRow>("SELECT * FROM moves WHERE state IN ('planned', 'moving', 'restoring') ORDER BY id"),
     movedOf: db.prepare<[number], MoveRow>("SELECT * FROM moves WHERE apply_id = ? AND state = 'moved' ORDER BY id"),
     movedAll: db.prepare<[], MoveRow>("SELECT * FROM moves WHERE state = 'moved' ORDER BY id"),
+    movedOfEvent: db.prepare<[string], MoveRow>("SELECT * FROM moves WHERE event_id = ? AND state = 'moved' ORDER BY id"),
   };
   return {
     candidates: () => candidates.all(),
@@ -79,6 +80,8 @@ export function createMoveStore(db: Ledger) {
     setState: (id: number, state: MoveRow['state'], method: MoveRow['method'] = null, error: string | null = null) => void stmts.setState.run(state, method, error, now(), id),
     unfinished: () => stmts.unfinished.all(),
     moved: (applyId?: number) => (applyId === undefined ? stmts.movedAll.all() : stmts.movedOf.all(applyId)),
+    /** Files of these events that an apply moved and nothing has put back yet. */
+    movedOfEvents: (eventIds: readonly string[]) => eventIds.flatMap((id) => stmts.movedOfEvent.all(id)),
   };
 }
 

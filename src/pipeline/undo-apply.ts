@@ -18,13 +18,15 @@ export interface UndoSummary {
   recovered: Recovery;
 }
 
-export async function undoApply(o: { ledger: string; applyId?: number; onFile?: (done: number, total: number, file: string) => void }): Promise<UndoSummary> {
+/** `events`: put back only these events' files (an event kept after its files were set aside),
+ *  from whichever apply moved them; the rest of each apply stays where it is. */
+export async function undoApply(o: { ledger: string; applyId?: number; events?: readonly string[]; onFile?: (done: number, total: number, file: string) => void }): Promise<UndoSummary> {
   const db = openLedger(o.ledger);
   try {
     const store = createMoveStore(db);
     if (o.applyId !== undefined && !store.apply(o.applyId)) throw pipelineError(PipelineErrorCode.unknownApply, `no apply ${o.applyId} in this ledger; \`movesift undo --list\` shows them`);
     const recovered = await recoverMoves(store);
-    const rows = store.moved(o.applyId);
+    const rows = o.events ? store.movedOfEvents(o.events).filter((m) => o.applyId === undefined || m.apply_id === o.applyId) : store.moved(o.applyId);
     const summary: UndoSummary = { applies: [...new Set(rows.map((r) => r.apply_id))], restored: 0, problems: [], recovered };
     for (const [i, m] of rows.entries()) {
       o.onFile?.(i, rows.length, m.source);

@@ -58,6 +58,37 @@ describe('acting on decisions in the app', () => {
     await until('the grid', async () => (await page.locator('.grid-scroll').count()) === 1);
   });
 
+  it('keeps an event whose files were already set aside: asks, then puts its files back', async () => {
+    const aside = path.join(dir, 'aside-2');
+    const applied = runCli(['apply', ledger, '--to', aside]);
+    expect(applied.code, applied.stderr).toBe(0);
+    for (let i = 0; i < 3; i++) await page.keyboard.press('d'); // any -> undecided -> kept -> set aside
+    await until('the set-aside filter', async () => (await page.locator('[data-chip=decision] b').textContent()) === 'set aside');
+    await until('a set-aside card', async () => (await page.locator('.card').count()) > 0);
+    const id = (await page.locator('.card').first().getAttribute('data-event'))!;
+    const db = new Database(ledger, { readonly: true });
+    const files = (db.prepare('SELECT m.rel_path FROM event_media em JOIN media m ON m.id = em.media_id WHERE em.event_id = ? ORDER BY em.position').all(id) as Array<{ rel_path: string }>).map((r) => r.rel_path);
+    db.close();
+    for (const f of files) expect(existsSync(path.join(cards, f))).toBe(false);
+    await page.keyboard.press('k');
+    await until('the question', async () => (await page.locator('[role=dialog]').count()) === 1);
+    expect(await page.locator('#confirm-title').textContent()).toBe(`Keep 1 event and put back ${files.length} file${files.length === 1 ? '' : 's'}?`);
+    await page.screenshot({ path: path.join(SHOTS, 'keep-moved.png') });
+    await page.keyboard.press('y');
+    await until('the files back in place', async () => files.every((f) => existsSync(path.join(cards, f))));
+    for (const f of files) expect(existsSync(path.join(aside, 'cards', f))).toBe(false);
+    const after = new Database(ledger, { readonly: true });
+    expect(after.prepare('SELECT decision FROM latest_decisions WHERE event_id = ?').get(id)).toEqual({ decision: 'keep' });
+    expect((after.prepare("SELECT DISTINCT state FROM moves WHERE event_id = ? AND apply_id = (SELECT max(id) FROM applies)").all(id) as Array<{ state: string }>).map((r) => r.state)).toEqual(['restored']);
+    // The rest of that apply stays set aside.
+    expect((after.prepare("SELECT count(*) AS n FROM moves WHERE state = 'moved'").get() as { n: number }).n).toBeGreaterThan(0);
+    after.close();
+    // Everything else back too, for the audit below (which reads its frames from where they are).
+    expect(runCli(['undo', ledger]).code).toBe(0);
+    await page.keyboard.press('d'); // back to any decision
+    await until('every decision', async () => (await page.locator('[data-chip=decision] b').textContent()) === 'any');
+  });
+
   it('draws an audit and takes yes/no answers from the keyboard', async () => {
     await page.keyboard.press('v');
     await until('the draw form', async () => (await page.getByTestId('audit-draw').count()) === 1);

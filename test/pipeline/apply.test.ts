@@ -84,6 +84,30 @@ describe('movesift apply and undo', () => {
     expect(report().events.map((e) => [e.id, e.decision])).toEqual(before.events.map((e) => [e.id, e.decision]));
   });
 
+  it('an event kept after apply: decide says its files are set aside and how to bring them back; undo --events puts back only those', () => {
+    const { cards, ledger, dir, hashes } = setup();
+    const aside = path.join(dir, 'aside');
+    expect(runCli(['apply', ledger, '--to', aside]).code).toBe(0);
+    const moved = rows<{ event_id: string; rel_path: string }>(ledger, "SELECT v.event_id, m.rel_path FROM moves v JOIN media m ON m.id = v.media_id WHERE v.state = 'moved' ORDER BY v.id");
+    const event = moved[0].event_id;
+    const mine = moved.filter((m) => m.event_id === event).map((m) => path.basename(m.rel_path));
+    const kept = runCli(['decide', ledger, '--keep', '--event', event]);
+    expect(kept.code, kept.stderr).toBe(0);
+    expect(kept.stdout).toContain(`1 of the kept event(s) have ${mine.length} file(s) in the set-aside folder still (moved by apply 1). To put them back:`);
+    expect(kept.stdout).toContain(`movesift undo ${ledger} --events ${event}`);
+    for (const f of mine) expect(existsSync(path.join(cards, f))).toBe(false); // deciding moves nothing
+    const back = runCli(['undo', ledger, '--events', event]);
+    expect(back.code, back.stderr).toBe(0);
+    expect(back.stdout).toContain(`Put back ${mine.length} file(s) from apply 1.`);
+    for (const f of mine) expect(sha(path.join(cards, f))).toBe(hashes.get(f));
+    // The other events of that apply stay set aside; a second keep finds nothing left to bring back.
+    const others = moved.filter((m) => m.event_id !== event);
+    expect(others.length).toBeGreaterThan(0);
+    for (const o of others) expect(existsSync(path.join(cards, path.basename(o.rel_path)))).toBe(false);
+    expect(runCli(['decide', ledger, '--keep', '--event', event]).stdout).not.toContain('set-aside folder still');
+    expect(runCli(['undo', ledger, '--events', 'nonsense']).code).toBe(2);
+  });
+
   it('refuses a set-aside folder inside a scanned folder (exit 2) and overwrites nothing on a name clash', () => {
     const { cards, ledger, dir } = setup();
     expect(runCli(['apply', ledger, '--to', path.join(cards, 'aside')]).code).toBe(2);

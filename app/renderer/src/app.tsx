@@ -7,7 +7,7 @@ import { useCallback, useEffect, useRef, useState } from 'react';
 import type { Decision, SessionInfo } from '../../../src/shared/review-api';
 import { api } from './shared/api';
 import { ConfirmDialog, type ConfirmRequest } from './shared/confirm-dialog';
-import { setAsideWarning } from './shared/decision-warning';
+import { keepMovedQuestion, setAsideWarning } from './shared/decision-warning';
 import { count } from './shared/format';
 import { actionFor, keyName, type Action, type Mode } from './shared/keys';
 import { EMPTY_SELECTION, fromServer, toggle, type Selection } from './shared/selection';
@@ -103,8 +103,28 @@ export function App({ initial }: { initial: SessionInfo }) {
     const verdicts = bulk ? selection.verdicts : { 'likely-blank': 0, unsure: 0, motion: 0, [card!.verdict]: 1 };
     const run = () => void inOrder(() => record(decision, ids, !bulk)).catch((e: Error) => setMessage(`Not recorded: ${e.message}`));
     const warning = decision === 'set-aside' ? setAsideWarning(ids.length, verdicts) : null;
-    if (warning) setConfirm({ request: warning, run });
-    else run();
+    if (warning) return setConfirm({ request: warning, run });
+    if (decision === 'set-aside') return run();
+    // Keeping what an apply already moved: ask, then put the files back.
+    void api.moved(ids).then(
+      (m) => {
+        if (!m.files) return run();
+        setConfirm({
+          request: keepMovedQuestion(ids.length, m.events.length, m.files),
+          run: () =>
+            void inOrder(async () => {
+              await record('keep', ids, !bulk);
+              try {
+                await api.restoreEvents(m.events);
+                setMessage(`Kept ${count(ids.length)}; putting back ${count(m.files)} file${m.files === 1 ? '' : 's'} from the set-aside folder (m shows the progress).`);
+              } catch (e) {
+                setMessage(`Kept ${count(ids.length)}, but their files could not be put back now (${(e as Error).message}); keep them again later to retry.`);
+              }
+            }).catch((e: Error) => setMessage(`Not recorded: ${e.message}`)),
+        });
+      },
+      (e: Error) => setMessage(`Not recorded: ${e.message}`),
+    );
   };
 
   const undo = async () => {

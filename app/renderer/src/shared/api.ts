@@ -65,6 +65,9 @@ export const api = {
   startApply: (to: string, copy: boolean, who: string) => call<TaskState>('api/apply', post({ to, copy, who })),
   applies: () => call<ApplyInfo[]>('api/applies'),
   undoApply: (apply?: number) => call<TaskState>('api/undo', post({ apply })),
+  /** Puts back the files of these events from the set-aside folder (a task). */
+  restoreEvents: (events: string[]) => call<TaskState>('api/undo', post({ events })),
+  moved: (events: string[]) => call<{ events: string[]; files: number; applies: number[] }>(`api/moved?${new URLSearchParams({ events: events.join(',') })}`),
   auditPlan: (tolerance: number) => call<{ sample: number }>(`api/audits/plan?tolerance=${tolerance}`),
   audits: () => call<Array<{ id: number; sample_size: number; population: number; answered: number }>>('api/audits'),
   drawAudit: (o: { sample: number; strata: number; tolerance: number; who: string }) => call<AuditReport>('api/audits', post(o)),

@@ -20,3 +20,16 @@ export function setAsideWarning(n: number, verdicts: Readonly<Record<Verdict, nu
   lines.push('Set-aside events are only marked: nothing is moved until someone applies the decisions, and u undoes this.');
   return { title: `Set aside ${count(n)} event${n === 1 ? '' : 's'}?`, lines, yesLabel: `Yes, set aside ${count(n)}` };
 }
+
+/** Keeping events whose files an apply already moved: keeping means the files belong back where
+ *  they came from, so the question says how many will be put back. */
+export function keepMovedQuestion(n: number, movedEvents: number, files: number): ConfirmRequest {
+  return {
+    title: `Keep ${count(n)} event${n === 1 ? '' : 's'} and put back ${count(files)} file${files === 1 ? '' : 's'}?`,
+    lines: [
+      `${n === 1 ? 'Its files are' : `${count(movedEvents)} of these events have their files`} in the set-aside folder already: an apply moved them.`,
+      'Keeping puts them back where they came from, each checked against the SHA-256 taken when it was moved.',
+    ],
+    yesLabel: `Yes, keep and put back ${count(files)}`,
+  };
+}
