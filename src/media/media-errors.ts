@@ -13,6 +13,7 @@ export const MediaErrorCode = {
   decodeFailed: 'E_MEDIA_DECODE_FAILED',
   videoProbe: 'E_VIDEO_PROBE_FAILED',
   videoDecode: 'E_VIDEO_DECODE_FAILED',
+  videoShort: 'E_VIDEO_SHORT',
   ffmpegMissing: 'E_FFMPEG_MISSING',
   folderMissing: 'E_FOLDER_MISSING',
 } as const;

@@ -35,6 +35,9 @@ export interface EventTask {
   width: number;
   height: number;
   videoFps: number;
+  /** A clip's duration as its container declares it (ffprobe at inventory): decoded frames that
+   *  stop well short of it mean a file cut short (a card pulled mid-write, a copy broken off). */
+  durationS?: number;
   flow: boolean;
   cacheDir: string;
   /** The deployment's data strip by consensus of its triggers (deployment-strip.ts), when it had
@@ -193,6 +196,11 @@ async function runClip(task: EventTask): Promise<TaskOutcome> {
   const problem = stream.problem();
   const end = times[times.length - 1] ?? 0;
   if (problem) failures.push({ display: file.display, code: MediaErrorCode.videoDecode, message: `${file.display}: decoding stopped early at ${end.toFixed(1)} s (${problem}); the part before it was screened`, stage: 'partial' });
+  // Short of the declared end by more than a second and two analysed frames (the last frame
+  // sits up to one frame interval before the end): the file holds less than it says.
+  else if (task.durationS && end < task.durationS - Math.max(1, 2 / task.videoFps)) {
+    failures.push({ display: file.display, code: MediaErrorCode.videoShort, message: `${file.display}: the file declares ${task.durationS.toFixed(1)} s but its frames end at ${end.toFixed(1)} s (cut short?); only the part before was screened`, stage: 'partial' });
+  }
   // The level the windows are built from (activityWindows smooths the same way). A window opens
   // only where it rises above what this clip's place does all the time (clipSeedLevel); it then
   // spans every frame above the fitted threshold around that point.
@@ -208,6 +216,8 @@ async function runClip(task: EventTask): Promise<TaskOutcome> {
   const rawPeak = scores.reduce((m, v) => Math.max(m, v), 0);
   let verdict = verdictFor(CLIP_MODEL, score);
   if (verdict === 'likely-blank' && rawPeak >= CLIP_MODEL.thresholds.motion) verdict = 'unsure';
+  // A clip screened only in part was not seen whole: what was not decoded may hold the fish.
+  if (verdict === 'likely-blank' && failures.length) verdict = 'unsure';
   const previews: PreviewFile[] = [await writeFramePreview(task.cacheDir, task.eventId, 0, first, 0)];
   const picks = windows.slice(0, 12).map((w) => {
     let bestC: { t: number; score: number; frame: RgbFrame; blobs: Blob[] } | undefined;

@@ -166,7 +166,10 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
           const neighbours = near.map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path }));
           tasks.push({
             plan, rootId, rels: items.map((m) => m.rel_path),
-            task: { eventId: id, kind: g.kind, files: items.map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path })), neighbours, width: size.width, height: size.height, videoFps: settings.videoFps, flow: settings.flow, cacheDir, deploymentStrip: consensus.strip },
+            task: {
+              eventId: id, kind: g.kind, files: items.map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path })), neighbours, width: size.width, height: size.height,
+              videoFps: settings.videoFps, durationS: g.kind === 'clip' ? (first.duration_s ?? undefined) : undefined, flow: settings.flow, cacheDir, deploymentStrip: consensus.strip,
+            },
           });
         }
       }

@@ -43,6 +43,29 @@ function buildFolder(): string {
   return dir;
 }
 
+describe('a clip cut short', () => {
+  it('is recorded as partial with the span screened, never likely-blank, and never set aside', () => {
+    // The sample clip (24 s, the index at the front) cut to its first 30 KB of about 113 KB: the
+    // container still declares 24 s, the frames end after about 6.
+    const dir = tempDir('movesift-short-');
+    mkdirSync(path.join(dir, 'station'));
+    writeFileSync(path.join(dir, 'station', 'cut.mp4'), readFileSync(path.join(ROOT, 'sample-media/reef-station/reef-drop-01.mp4')).subarray(0, 30_000));
+    const ledger = path.join(dir, 's.ledger');
+    const r = runCli(['scan', dir, '--ledger', ledger]);
+    expect(r.code, r.stderr).toBe(0);
+    const report = JSON.parse(runCli(['report', ledger]).stdout) as Report;
+    expect(report.errors).toHaveLength(1);
+    expect(report.errors[0]).toMatchObject({ file: 'station/cut.mp4', code: 'E_VIDEO_SHORT' });
+    const m = /declares 24\.0 s but its frames end at ([\d.]+) s/.exec(report.errors[0].message)!;
+    expect(Number(m[1])).toBeLessThan(12);
+    expect(report.events).toHaveLength(1);
+    expect(report.events[0].verdict).not.toBe('likely-blank');
+    // Set aside by a person anyway, apply leaves it where it is.
+    expect(runCli(['decide', ledger, '--set-aside', '--deployment', 'station']).code).toBe(0);
+    expect(runCli(['apply', ledger, '--to', path.join(tempDir('movesift-short-aside-'), 'aside'), '--dry-run']).stdout).toContain('No set-aside media left to move');
+  });
+});
+
 describe('bad input in a scanned folder', () => {
   let report: Report;
   let stdout: string;
