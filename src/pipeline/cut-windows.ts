@@ -2,7 +2,9 @@
  * Activity windows as short files: each window of each clip cut out with ffmpeg. By default a
  * stream copy, which cannot start between keyframes: the input is sought to the window start
  * with -ss before -i, and ffmpeg starts the copy at the keyframe at or before it, so a cut may
- * begin up to one keyframe interval early (never late: nothing of the window is lost). With
+ * begin up to one keyframe interval early (never late: nothing of the window is lost). Where it
+ * really begins, the keyframe at or before the window (read with ffprobe), is recorded as the
+ * file's `file_start_s`: a time read in the file plus it is the time in the source clip. With
  * exact, the window is re-encoded (H.264, CRF 18) and starts and ends where it says. Beside the
  * files: an index CSV and a sheet with a row per window for MaxN counting (the greatest number
  * of individuals of a species seen in one frame, the standard count of baited video surveys).
@@ -28,6 +30,21 @@ export interface CutFile {
   end_s: number;
   score: number;
   file: string;
+  /** Source time of the file's first frame: the window start (exact) or the keyframe at or before it. */
+  file_start_s: number;
+}
+
+/** Keyframe times of the first video stream, from ffprobe (only keyframes are decoded). */
+function keyframeTimes(ffprobe: string, source: string): Promise<number[]> {
+  return new Promise((resolve, reject) => {
+    const p = spawn(ffprobe, ['-v', 'error', '-select_streams', 'v:0', '-skip_frame', 'nokey', '-show_entries', 'frame=pts_time', '-of', 'csv=p=0', source], { stdio: ['ignore', 'pipe', 'pipe'] });
+    let out = '';
+    let err = '';
+    p.stdout.on('data', (d) => (out += d));
+    p.stderr.on('data', (d) => (err += d));
+    p.on('error', reject);
+    p.on('close', (code) => (code === 0 ? resolve(out.split(/[\s,]+/).filter(Boolean).map(Number).filter(Number.isFinite).sort((a, b) => a - b)) : reject(new Error(`ffprobe exited ${code}: ${err.trim().split('\n').slice(-2).join(' ')}`))));
+  });
 }
 
 const stamp = (s: number): string => {
@@ -46,10 +63,11 @@ function run(bin: string, args: string[]): Promise<void> {
 }
 
 export async function cutWindows(clips: ClipWindows[], out: string, exact: boolean, onFile?: (f: CutFile) => void): Promise<CutFile[]> {
-  const { ffmpeg } = resolveBinaries();
+  const { ffmpeg, ffprobe } = resolveBinaries();
   await fs.mkdir(out, { recursive: true });
   const files: CutFile[] = [];
   for (const c of clips) {
+    const keys = exact || !c.windows.length ? [] : await keyframeTimes(ffprobe, c.source);
     const stem = path.basename(c.display, path.extname(c.display)).replace(/[^\w.-]+/g, '_');
     for (const [i, w] of c.windows.entries()) {
       const ext = exact ? '.mp4' : path.extname(c.display).toLowerCase() || '.mp4';
@@ -61,14 +79,17 @@ export async function cutWindows(clips: ClipWindows[], out: string, exact: boole
         : ['-v', 'error', '-y', '-ss', w.start_s.toFixed(3), '-i', c.source, '-t', (w.end_s - w.start_s).toFixed(3), '-c', 'copy', '-avoid_negative_ts', 'make_zero', part];
       await run(ffmpeg, args);
       await fs.rename(part, file);
-      const f = { eventId: c.eventId, source: c.display, window: i + 1, start_s: w.start_s, end_s: w.end_s, score: w.score, file: name };
+      // The copy starts on the last keyframe at or before the window (1 ms for the rounding of -ss).
+      const fileStart = exact ? w.start_s : keys.filter((k) => k <= w.start_s + 1e-3).pop() ?? 0;
+      const f = { eventId: c.eventId, source: c.display, window: i + 1, start_s: w.start_s, end_s: w.end_s, score: w.score, file: name, file_start_s: Math.round(fileStart * 1000) / 1000 };
       files.push(f);
       onFile?.(f);
     }
   }
-  const index = ['source_clip,event,window,start_s,end_s,score,file,mode', ...files.map((f) => [f.source, f.eventId, f.window, f.start_s, f.end_s, f.score, f.file, exact ? 'exact' : 'keyframe'].map(csvCell).join(','))];
+  const index = ['source_clip,event,window,start_s,end_s,score,file,file_start_s,mode', ...files.map((f) => [f.source, f.eventId, f.window, f.start_s, f.end_s, f.score, f.file, f.file_start_s, exact ? 'exact' : 'keyframe'].map(csvCell).join(','))];
   await fs.writeFile(path.join(out, 'windows-index.csv'), index.join('\n') + '\n');
-  const maxn = ['source_clip,window,start,end,start_s,end_s,file,species,max_n,time_of_max_n,observer,notes', ...files.map((f) => [f.source, f.window, stamp(f.start_s), stamp(f.end_s), f.start_s, f.end_s, f.file, '', '', '', '', ''].map(csvCell).join(','))];
+  // time_of_max_n is a time in the source clip: a time read in the cut file plus file_start_s.
+  const maxn = ['source_clip,window,start,end,start_s,end_s,file,file_start_s,species,max_n,time_of_max_n,observer,notes', ...files.map((f) => [f.source, f.window, stamp(f.start_s), stamp(f.end_s), f.start_s, f.end_s, f.file, f.file_start_s, '', '', '', '', ''].map(csvCell).join(','))];
   await fs.writeFile(path.join(out, 'maxn-sheet.csv'), maxn.join('\n') + '\n');
   return files;
 }

@@ -127,6 +127,7 @@ describe('movesift cut', () => {
       const d = probe(file);
       if (exact) {
         expect(Math.abs(d - want)).toBeLessThan(0.15);
+        expect(Number(col(row, 'file_start_s'))).toBe(windows[i].start_s);
         // Re-encoded, so not byte-equal: its first frame is nearer the source frame at the window
         // start than any source frame up to half a second either side (the clip runs at 8 fps).
         const first = frameAt(file);
@@ -142,6 +143,8 @@ describe('movesift cut', () => {
         expect(d).toBeGreaterThanOrEqual(want - 0.15);
         expect(d).toBeLessThanOrEqual(want + gop + 0.15);
         expect(frameAt(file).equals(frameAt(source, key))).toBe(true); // its first frame is that keyframe
+        // and the index says so: a time read in the file plus file_start_s is the source time.
+        expect(Number(col(row, 'file_start_s'))).toBeCloseTo(key, 3);
       }
     });
   }, 120_000);
