@@ -72,7 +72,7 @@ export function exportDeployments(db: Ledger): ExportDeploymentRow[] {
   return db
     .prepare<[], ExportDeploymentRow>(
       `SELECT dp.id, r.path AS root, dp.folder, dp.location_name, dp.latitude, dp.longitude, dp.camera_id, dp.camera_model,
-         (SELECT min(capture_time) FROM media WHERE deployment_id = dp.id) AS first_capture, (SELECT max(capture_time) FROM media WHERE deployment_id = dp.id) AS last_capture
+         (SELECT min(capture_time) FROM media WHERE deployment_id = dp.id) AS first_capture, coalesce(max((SELECT max(capture_time) FROM media WHERE deployment_id = dp.id), (SELECT max(end_time) FROM events WHERE deployment_id = dp.id)), (SELECT max(capture_time) FROM media WHERE deployment_id = dp.id)) AS last_capture
        FROM deployments dp JOIN roots r ON r.id = dp.root_id
        WHERE EXISTS (SELECT 1 FROM events e JOIN analyses a ON a.event_id = e.id WHERE e.deployment_id = dp.id)
        ORDER BY dp.id`,

@@ -91,7 +91,13 @@ export function buildCamtrap(deps: ExportDeploymentRow[], media: ExportMediaRow[
     const notes = found.length ? `Camera problems found by Movesift: ${found.map((h) => h.message).join('; ')}` : null;
     return { deploymentID: d.id, locationName: d.location_name ?? f?.locationName ?? null, latitude: lat, longitude: lon, deploymentStart: ts(d.first_capture ?? '', d.id, 'first capture'), deploymentEnd: ts(d.last_capture ?? '', d.id, 'last capture'), cameraID: d.camera_id ?? f?.cameraID ?? null, cameraModel: d.camera_model ?? f?.cameraModel ?? null, timestampIssues: clock ? true : null, deploymentComments: notes };
   });
-  const mediaRows = media.map((m) => ({ mediaID: `m${m.media_id}`, deploymentID: m.deployment_id, captureMethod: m.kind === 'image' ? 'activityDetection' : null, timestamp: ts(m.capture_time, m.deployment_id, 'capture time'), filePath: `${labels.get(m.root)}/${m.rel_path}`, filePublic: false, fileName: path.basename(m.rel_path), fileMediatype: mediatype(m) }));
+  // How each file was captured (Camtrap DP media.captureMethod): images are motion triggers; a
+  // clip is one too when its deployment also holds images (a trail camera filming on its
+  // trigger), and a scheduled recording when its deployment holds only clips (a survey station
+  // started by a person or a timer). Our reading of the two terms; the project lists those used.
+  const hasImages = new Set(media.filter((m) => m.kind === 'image').map((m) => m.deployment_id));
+  const methodOf = (m: (typeof media)[number]) => (m.kind === 'image' || hasImages.has(m.deployment_id) ? 'activityDetection' : 'timeLapse');
+  const mediaRows = media.map((m) => ({ mediaID: `m${m.media_id}`, deploymentID: m.deployment_id, captureMethod: methodOf(m), timestamp: ts(m.capture_time, m.deployment_id, 'capture time'), filePath: `${labels.get(m.root)}/${m.rel_path}`, filePublic: false, fileName: path.basename(m.rel_path), fileMediatype: mediatype(m) }));
   const obsRows = events.map((e) => {
     const person = e.decision !== null;
     const type = person ? (e.decision === 'set-aside' ? 'blank' : 'unclassified') : e.verdict === 'likely-blank' ? 'blank' : 'unclassified';
@@ -113,7 +119,7 @@ export function buildCamtrap(deps: ExportDeploymentRow[], media: ExportMediaRow[
     created: o.created,
     contributors: [{ title: o.who, role: 'contributor' }],
     sources: [{ title: 'Movesift', version: o.engineVersion }],
-    project: { title: o.projectTitle, samplingDesign: 'opportunistic', captureMethod: ['activityDetection'], individualAnimals: false, observationLevel: ['event'] },
+    project: { title: o.projectTitle, samplingDesign: 'opportunistic', captureMethod: [...new Set(mediaRows.map((r) => r.captureMethod))].sort(), individualAnimals: false, observationLevel: ['event'] },
     spatial: { type: 'Polygon', coordinates: [[[w, s], [e, s], [e, n], [w, n], [w, s]]] },
     temporal: { start: dates[0], end: dates[dates.length - 1] },
     taxonomic: [],

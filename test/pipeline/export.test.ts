@@ -94,6 +94,15 @@ describe('exports', () => {
     expect(tables.deployments.rows.find((d) => d.deploymentID === 'ridge-trail')).toMatchObject({ latitude: 51.0521, longitude: 3.7233, locationName: 'Ridge trail' });
     expect(tables.deployments.rows.find((d) => d.deploymentID === 'reef-station')).toMatchObject({ latitude: -16.9203, longitude: 145.771 }); // values untouched by the spreadsheet guard
     expect(tables.deployments.rows.some((d) => d.deploymentID === '=SUM(A1)')).toBe(true);
+    // The clip: its event and its deployment last its 24 s, and its capture method is named (a
+    // station holding only clips records on a schedule; the trail camera's images are triggers).
+    const clipObs = tables.observations.rows.find((o) => o.deploymentID === 'reef-station')!;
+    expect(Date.parse(String(clipObs.eventEnd)) - Date.parse(String(clipObs.eventStart))).toBe(24_000);
+    const reef = tables.deployments.rows.find((d) => d.deploymentID === 'reef-station')!;
+    expect(Date.parse(String(reef.deploymentEnd)) - Date.parse(String(reef.deploymentStart))).toBe(24_000);
+    expect(new Set(tables.media.rows.filter((m) => m.deploymentID === 'reef-station').map((m) => m.captureMethod))).toEqual(new Set(['timeLapse']));
+    expect(new Set(tables.media.rows.filter((m) => m.deploymentID === 'ridge-trail').map((m) => m.captureMethod))).toEqual(new Set(['activityDetection']));
+    expect(descriptor.project.captureMethod).toEqual(['activityDetection', 'timeLapse']);
   });
 });
 
