@@ -66,10 +66,12 @@ const mediatype = (r: ExportMediaRow): string => {
 };
 
 export function buildCamtrap(deps: ExportDeploymentRow[], media: ExportMediaRow[], events: ExportEventRow[], o: CamtrapOptions): CamtrapPackage {
-  const missing: string[] = [];
-  const ts = (iso: string, dep: string, what: string): string => {
+  // What is missing, grouped by deployment and cause: one line each, however many files.
+  const noOffset = new Map<string, Set<string>>();
+  const noPlace = new Set<string>();
+  const ts = (iso: string, dep: string): string => {
     const v = withOffset(iso, o.utcOffset);
-    if (!v) missing.push(`${dep}: ${what} ${iso} has no UTC offset (give --utc-offset +HH:MM)`);
+    if (!v) noOffset.set(dep, (noOffset.get(dep) ?? new Set<string>()).add(iso));
     return v ?? iso;
   };
   const labels = new Map<string, string>();
@@ -83,13 +85,13 @@ export function buildCamtrap(deps: ExportDeploymentRow[], media: ExportMediaRow[
     const f = o.facts?.get(d.id);
     const lat = d.latitude ?? f?.latitude ?? null;
     const lon = d.longitude ?? f?.longitude ?? null;
-    if (lat === null || lon === null) missing.push(`${d.id}: no latitude and longitude (give a deployments table with --deployments)`);
+    if (lat === null || lon === null) noPlace.add(d.id);
     // A clock that was reset is what Camtrap DP's timestampIssues is for; every finding goes to
     // the deployment's comments. No finding leaves both empty (the screener cannot vouch for a clock).
     const found = health.get(d.id) ?? [];
     const clock = found.some((h) => h.code === 'clock-implausible' || h.code === 'clock-backwards');
     const notes = found.length ? `Camera problems found by Movesift: ${found.map((h) => h.message).join('; ')}` : null;
-    return { deploymentID: d.id, locationName: d.location_name ?? f?.locationName ?? null, latitude: lat, longitude: lon, deploymentStart: ts(d.first_capture ?? '', d.id, 'first capture'), deploymentEnd: ts(d.last_capture ?? '', d.id, 'last capture'), cameraID: d.camera_id ?? f?.cameraID ?? null, cameraModel: d.camera_model ?? f?.cameraModel ?? null, timestampIssues: clock ? true : null, deploymentComments: notes };
+    return { deploymentID: d.id, locationName: d.location_name ?? f?.locationName ?? null, latitude: lat, longitude: lon, deploymentStart: ts(d.first_capture ?? '', d.id), deploymentEnd: ts(d.last_capture ?? '', d.id), cameraID: d.camera_id ?? f?.cameraID ?? null, cameraModel: d.camera_model ?? f?.cameraModel ?? null, timestampIssues: clock ? true : null, deploymentComments: notes };
   });
   // How each file was captured (Camtrap DP media.captureMethod): images are motion triggers; a
   // clip is one too when its deployment also holds images (a trail camera filming on its
@@ -97,17 +99,23 @@ export function buildCamtrap(deps: ExportDeploymentRow[], media: ExportMediaRow[
   // started by a person or a timer). Our reading of the two terms; the project lists those used.
   const hasImages = new Set(media.filter((m) => m.kind === 'image').map((m) => m.deployment_id));
   const methodOf = (m: (typeof media)[number]) => (m.kind === 'image' || hasImages.has(m.deployment_id) ? 'activityDetection' : 'timeLapse');
-  const mediaRows = media.map((m) => ({ mediaID: `m${m.media_id}`, deploymentID: m.deployment_id, captureMethod: methodOf(m), timestamp: ts(m.capture_time, m.deployment_id, 'capture time'), filePath: `${labels.get(m.root)}/${m.rel_path}`, filePublic: false, fileName: path.basename(m.rel_path), fileMediatype: mediatype(m) }));
+  const mediaRows = media.map((m) => ({ mediaID: `m${m.media_id}`, deploymentID: m.deployment_id, captureMethod: methodOf(m), timestamp: ts(m.capture_time, m.deployment_id), filePath: `${labels.get(m.root)}/${m.rel_path}`, filePublic: false, fileName: path.basename(m.rel_path), fileMediatype: mediatype(m) }));
   const obsRows = events.map((e) => {
     const person = e.decision !== null;
     const type = person ? (e.decision === 'set-aside' ? 'blank' : 'unclassified') : e.verdict === 'likely-blank' ? 'blank' : 'unclassified';
     return {
-      observationID: `o${e.id}`, deploymentID: e.deployment_id, eventID: e.id, eventStart: ts(e.start_time, e.deployment_id, 'event start'), eventEnd: ts(e.end_time, e.deployment_id, 'event end'),
+      observationID: `o${e.id}`, deploymentID: e.deployment_id, eventID: e.id, eventStart: ts(e.start_time, e.deployment_id), eventEnd: ts(e.end_time, e.deployment_id),
       observationLevel: 'event', observationType: type, classificationMethod: person ? 'human' : 'machine', classifiedBy: person ? e.decided_by : `Movesift ${e.engine_version}`,
       classificationTimestamp: person ? withOffset(e.decided_at ?? '', undefined) : null, classificationProbability: person ? null : +(type === 'blank' ? 1 - e.score : e.score).toFixed(6),
     };
   });
-  if (missing.length) throw new MovesiftError(ExportErrorCode.incomplete, `a Camtrap DP package needs facts this ledger does not have:\n  ${[...new Set(missing)].slice(0, 20).join('\n  ')}`);
+  if (noOffset.size || noPlace.size) {
+    const lines = [
+      ...(noPlace.size ? [`no latitude and longitude for ${[...noPlace].join(', ')}: give a deployments table with them (columns folder, deploymentID, latitude, longitude)`] : []),
+      ...[...noOffset].map(([dep, times]) => `${dep}: ${times.size} capture time(s) without a UTC offset (such as ${[...times].sort()[0]}): give the cameras' UTC offset, +HH:MM`),
+    ];
+    throw new MovesiftError(ExportErrorCode.incomplete, `a Camtrap DP package needs facts this ledger does not have:\n  ${lines.join('\n  ')}`);
+  }
   const lats = depRows.map((r) => r.latitude as number), lons = depRows.map((r) => r.longitude as number);
   const dates = depRows.flatMap((r) => [r.deploymentStart, r.deploymentEnd]).map((t) => new Date(t).toISOString().slice(0, 10)).sort();
   const [w, e, s, n] = [Math.min(...lons), Math.max(...lons), Math.min(...lats), Math.max(...lats)];

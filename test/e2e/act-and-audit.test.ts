@@ -89,6 +89,26 @@ describe('acting on decisions in the app', () => {
     await until('every decision', async () => (await page.locator('[data-chip=decision] b').textContent()) === 'any');
   });
 
+  it('says beside the export form, one line per cause, what a Camtrap DP package still needs', async () => {
+    await page.keyboard.press('m');
+    await until('the act panel', async () => (await page.getByTestId('act-panel').count()) === 1);
+    await page.getByLabel('export destination').fill(path.join(dir, 'package'));
+    await page.getByRole('button', { name: 'Export', exact: true }).click();
+    await until('the refusal', async () => (await page.getByTestId('export-error').count()) === 1);
+    const lines = await page.getByTestId('export-error').locator('div').allTextContents();
+    expect(lines[0]).toBe('a Camtrap DP package needs facts this ledger does not have:');
+    expect(lines.slice(1)).toEqual([
+      'no latitude and longitude for ridge-trail: give a deployments table with them (columns folder, deploymentID, latitude, longitude)',
+      expect.stringMatching(/^ridge-trail: 32 capture time\(s\) without a UTC offset \(such as .*\): give the cameras' UTC offset, \+HH:MM \(E_EXPORT_INCOMPLETE\)$/),
+    ]);
+    // Beside the form: inside the export section, not the panel's top line.
+    expect(await page.locator('section', { has: page.getByLabel('export destination') }).getByTestId('export-error').count()).toBe(1);
+    expect(await page.locator('.act > p[role=alert]').count()).toBe(0);
+    await page.screenshot({ path: path.join(SHOTS, 'export-refusal.png') });
+    await page.keyboard.press('Escape');
+    await until('the grid', async () => (await page.locator('.grid-scroll').count()) === 1);
+  });
+
   it('draws an audit and takes yes/no answers from the keyboard', async () => {
     await page.keyboard.press('v');
     await until('the draw form', async () => (await page.getByTestId('audit-draw').count()) === 1);

@@ -53,8 +53,15 @@ describe('exports', () => {
     const r = runCli(['export', ledger, '--format', 'camtrap-dp', '--out', path.join(dir, 'incomplete')]);
     expect(r.code).toBe(2);
     expect(r.stderr).toContain('needs facts this ledger does not have');
-    expect(r.stderr).toMatch(/ridge-trail: no latitude and longitude/);
-    expect(r.stderr).toMatch(/no UTC offset/);
+    // One line per cause and deployment, however many files: the coordinates once, naming every
+    // deployment without them; the offsets once per deployment, with how many times lack one.
+    const lines = r.stderr.split('\n').filter((l) => l.startsWith('  '));
+    expect(lines.filter((l) => /no latitude and longitude for/.test(l))).toHaveLength(1);
+    expect(lines.find((l) => /no latitude and longitude for/.test(l))).toMatch(/=SUM\(A1\), reef-station, ridge-trail/);
+    const ridge = lines.filter((l) => l.startsWith('  ridge-trail:'));
+    expect(ridge).toHaveLength(1);
+    expect(ridge[0]).toMatch(/^  ridge-trail: 32 capture time\(s\) without a UTC offset \(such as 2025-06-01T\d\d:\d\d:\d\d\): give the cameras' UTC offset, \+HH:MM$/);
+    expect(lines).toHaveLength(3); // and =SUM(A1); the clip's times carry their own offset (Z)
   });
 
   it('Camtrap DP 1.0.2: the package and its tables validate against the standard', () => {

@@ -53,6 +53,8 @@ export function ActPanel({ who, initialTask, ask, onChanged }: Props) {
   const [applies, setApplies] = useState<ApplyInfo[]>([]);
   const [recall, setRecall] = useState('0.99');
   const [cal, setCal] = useState<CalibrationResult | null>(null);
+  // An export's refusal is shown beside the fields that fix it, not at the top of the panel.
+  const [exportError, setExportError] = useState<string | null>(null);
   const [exp, setExp] = useState({ format: 'camtrap-dp' as 'csv' | 'camtrap-dp', out: '', utcOffset: '', deployments: '', force: false });
   const [cutOut, setCutOut] = useState('');
   const [message, setMessage] = useState<string | null>(null);
@@ -193,10 +195,28 @@ export function ActPanel({ who, initialTask, ask, onChanged }: Props) {
           Replace an earlier export at this place (a ledger or a photo is never replaced)
         </label>
         <div className="dialog-buttons">
-          <button type="button" disabled={!exp.out} onClick={act(async () => setMessage(`Exported to ${(await api.exportData({ format: exp.format, out: exp.out, utcOffset: exp.utcOffset || undefined, deployments: exp.deployments || undefined, who, force: exp.force || undefined })).out}.`))}>
+          <button
+            type="button"
+            disabled={!exp.out}
+            onClick={act(async () => {
+              setExportError(null);
+              try {
+                setMessage(`Exported to ${(await api.exportData({ format: exp.format, out: exp.out, utcOffset: exp.utcOffset || undefined, deployments: exp.deployments || undefined, who, force: exp.force || undefined })).out}.`);
+              } catch (e) {
+                setExportError(`${(e as Error).message}${(e as { code?: string }).code ? ` (${(e as { code?: string }).code})` : ''}`);
+              }
+            })}
+          >
             Export
           </button>
         </div>
+        {exportError && (
+          <div className="error-text export-error" role="alert" data-testid="export-error">
+            {exportError.split('\n').map((l, i) => (
+              <div key={i}>{l.trim()}</div>
+            ))}
+          </div>
+        )}
       </section>
       <section className="start-panel">
         <h2>Cut clips into activity windows</h2>
