@@ -9,6 +9,7 @@ export const ApiErrorCode = {
   scanRunning: 'E_SCAN_RUNNING',
   noScan: 'E_NO_SCAN',
   taskRunning: 'E_TASK_RUNNING',
+  staleUndo: 'E_UNDO_STALE',
 } as const;
 
 export type ApiErrorCodeValue = (typeof ApiErrorCode)[keyof typeof ApiErrorCode];

@@ -10,7 +10,9 @@
  *   GET  /api/deployments                     counts per deployment, verdict and decision
  *   GET  /api/health                          camera problems per deployment (deployment-health.ts)
  *   POST /api/decisions {events:[id], decision, source, who?}
- *   POST /api/decisions/undo {who?}           undoes the latest batch not yet undone
+ *   GET  /api/decisions/last                  the batch an undo would take back (or null)
+ *   POST /api/decisions/undo {who?, batch?}   undoes the latest batch not yet undone (only if it is
+ *                                             `batch`, when given: 409 otherwise)
  */
 import path from 'node:path';
 import type { ReviewQueries } from '../ledger/review-queries.js';
@@ -81,10 +83,17 @@ export async function reviewRoute(req: Request, parts: string[], url: URL, l: Op
     if (body.source !== 'single' && body.source !== 'bulk') throw badRequest(`source: wanted single or bulk, got ${JSON.stringify(body.source)}`);
     return json(q.decide(ids, body.decision, body.source, who(body.who)));
   }
+  if (what === 'decisions' && id === 'last' && parts.length === 3) {
+    only('GET');
+    return json(q.lastBatch());
+  }
   if (what === 'decisions' && id === 'undo' && parts.length === 3) {
     only('POST');
     const body = await readJson(req);
-    return json(q.undoLast(who(body.who)));
+    if (body.batch !== undefined && (typeof body.batch !== 'string' || body.batch.length > 100)) throw badRequest(`batch: wanted a batch id, got ${JSON.stringify(body.batch)}`);
+    const r = q.undoLast(who(body.who), body.batch as string | undefined);
+    if (r.stale) throw new HttpError(409, ApiErrorCode.staleUndo, 'the latest decisions changed since you were asked; nothing was undone');
+    return json(r);
   }
   throw notFound(`no route ${url.pathname}`);
 }

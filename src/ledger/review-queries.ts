@@ -3,7 +3,7 @@
  * previews and media by ledger id, deployment counts, and the append-only decisions log.
  */
 import { randomUUID } from 'node:crypto';
-import type { EventCalibration, EventCard, EventFilter, VerdictRule } from '../shared/review-api.js';
+import type { EventCalibration, EventCard, EventFilter, LastBatch, VerdictRule } from '../shared/review-api.js';
 import type { Ledger } from './open-ledger.js';
 import { healthRows } from './report-rows.js';
 
@@ -64,6 +64,9 @@ export function createReviewQueries(db: Ledger) {
   const snapshot = db.prepare<[string], { score: number; verdict: string; engine_version: string; decision: string | null }>(`SELECT a.score, a.verdict, a.engine_version, d.decision FROM events e JOIN analyses a ON a.event_id = e.id ${LATEST} WHERE e.id = ?`);
   const insertDecision = db.prepare('INSERT INTO decisions (event_id, decision, source, who, at, score, verdict, engine_version, batch, note) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)');
   const lastBatch = db.prepare<[], { batch: string }>("SELECT batch FROM decisions WHERE source != 'undo' AND batch IS NOT NULL AND batch NOT IN (SELECT note FROM decisions WHERE source = 'undo' AND note IS NOT NULL) ORDER BY id DESC LIMIT 1");
+  const batchFacts = db.prepare<[string], { source: string; who: string | null; at: string; decision: string; n: number }>(
+    'SELECT source, who, max(at) AS at, decision, count(*) AS n FROM decisions WHERE batch = ? AND source != \'undo\' GROUP BY source, who, decision ORDER BY n DESC LIMIT 1',
+  );
   const batchRows = db.prepare<[string], { id: number; event_id: string }>('SELECT id, event_id FROM decisions WHERE batch = ? ORDER BY id');
   const decisionBefore = db.prepare<[string, number], { decision: string | null }>('SELECT decision FROM decisions WHERE event_id = ? AND id < ? ORDER BY id DESC LIMIT 1');
   const summary = db.prepare<[], { deployment: string; verdict: string; decision: string | null; n: number }>(
@@ -142,9 +145,19 @@ export function createReviewQueries(db: Ledger) {
       }
       return { batch, written: ids.length - missing.length, changed, missing };
     }),
-    /** Undoes the latest batch not yet undone: appends, per event, the decision it had before. */
-    undoLast: db.transaction((who: string | null) => {
+    /** The batch an undo would take back now: who made it, how (the app or a command), when. */
+    lastBatch(): LastBatch | null {
       const b = lastBatch.get();
+      if (!b) return null;
+      const f = batchFacts.get(b.batch)!;
+      return { batch: b.batch, source: f.source, who: f.who, at: f.at, decision: f.decision as LastBatch['decision'], events: batchRows.all(b.batch).length };
+    },
+    /** Undoes the latest batch not yet undone: appends, per event, the decision it had before.
+     *  Given `expected`, only if that is still the latest batch (someone else may have decided
+     *  since the person was asked): `stale` otherwise, and nothing is written. */
+    undoLast: db.transaction((who: string | null, expected?: string) => {
+      const b = lastBatch.get();
+      if (expected !== undefined && b?.batch !== expected) return { batch: null, restored: 0, events: [], stale: true };
       if (!b) return { batch: null, restored: 0, events: [] };
       const at = new Date().toISOString();
       const rows = batchRows.all(b.batch);

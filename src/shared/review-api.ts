@@ -148,6 +148,19 @@ export interface UndoResult {
   restored: number;
   /** Each event the undo touched and the decision it has again (null: none). */
   events: Array<{ id: string; decision: Decision | null }>;
+  /** The batch asked for is no longer the latest: nothing was undone. */
+  stale?: boolean;
+}
+
+/** The decisions an undo would take back now. */
+export interface LastBatch {
+  batch: string;
+  /** `single` or `bulk` from the app, `command` from `movesift decide`. */
+  source: string;
+  who: string | null;
+  at: string;
+  decision: Decision;
+  events: number;
 }
 
 export interface ScanJobState {

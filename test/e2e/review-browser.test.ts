@@ -12,7 +12,7 @@ import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { scan } from '../../src/pipeline/scan.js';
 import { launchChromium } from '../helpers/browser.js';
-import { ROOT, tempDir } from '../helpers/cli.js';
+import { ROOT, runCli, tempDir } from '../helpers/cli.js';
 import { startReview, type RunningReview } from '../helpers/review-server.js';
 import { until } from '../helpers/until.js';
 
@@ -194,6 +194,29 @@ describe('review app in Chromium', () => {
     for (let i = 0; i < 10; i++) await page.keyboard.press(',');
     await page.keyboard.press('=');
     await until('every score again', async () => (await shownCount()) === 25);
+  });
+
+  it('asks before undoing decisions a command made, naming who and when; Enter leaves them', async () => {
+    await page.keyboard.press('0');
+    await until('every verdict', async () => (await shownCount()) === 25);
+    const decisionsBefore = latest();
+    const r = runCli(['decide', ledger, '--set-aside', '--verdict', 'likely-blank', '--who', 'field-lead']);
+    expect(r.code, r.stderr).toBe(0);
+    const n = Number(/Set aside (\d+) event/.exec(r.stdout)![1]);
+    const decided = latest();
+    await page.keyboard.press('u');
+    await until('the question', async () => (await page.locator('[role=dialog]').count()) === 1);
+    expect(await text('#confirm-title')).toBe(`Undo ${n} decisions made by field-lead?`);
+    expect(await text('[role=dialog] p')).toMatch(/^The latest decisions were made with the movesift decide command by field-lead at \d{4}-\d\d-\d\d \d\d:\d\d:\d\d UTC: \d+ events set aside\.$/);
+    await page.screenshot({ path: path.join(SHOTS, 'undo-command.png') });
+    await page.keyboard.press('Enter'); // the safe answer: no
+    await until('the dialog gone', async () => (await page.locator('[role=dialog]').count()) === 0);
+    expect(latest()).toEqual(decided);
+    await page.keyboard.press('u');
+    await until('the question again', async () => (await page.locator('[role=dialog]').count()) === 1);
+    await page.keyboard.press('y');
+    // Every event has again the decision it had before the command (undecided ones none).
+    await until('the command batch undone', async () => [...latest()].every(([id, d]) => d === (decisionsBefore.get(id) ?? null)));
   });
 
   it('lists every key in the help overlay', async () => {

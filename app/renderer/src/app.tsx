@@ -7,7 +7,7 @@ import { useCallback, useEffect, useRef, useState } from 'react';
 import type { Decision, SessionInfo } from '../../../src/shared/review-api';
 import { api } from './shared/api';
 import { ConfirmDialog, type ConfirmRequest } from './shared/confirm-dialog';
-import { keepMovedQuestion, setAsideWarning } from './shared/decision-warning';
+import { keepMovedQuestion, setAsideWarning, undoQuestion } from './shared/decision-warning';
 import { count } from './shared/format';
 import { actionFor, keyName, type Action, type Mode } from './shared/keys';
 import { EMPTY_SELECTION, fromServer, toggle, type Selection } from './shared/selection';
@@ -105,11 +105,12 @@ export function App({ initial }: { initial: SessionInfo }) {
     const warning = decision === 'set-aside' ? setAsideWarning(ids.length, verdicts) : null;
     if (warning) return setConfirm({ request: warning, run });
     if (decision === 'set-aside') return run();
-    // Keeping what an apply already moved: ask, then put the files back.
-    void api.moved(ids).then(
-      (m) => {
-        if (!m.files) return run();
-        setConfirm({
+    // Keeping what an apply already moved: ask, then put the files back. The check is queued with
+    // the writes, so an undo typed straight after a keep still finds the keep written first.
+    void inOrder(async () => {
+      const m = await api.moved(ids);
+      if (!m.files) return record('keep', ids, !bulk);
+      setConfirm({
           request: keepMovedQuestion(ids.length, m.events.length, m.files),
           run: () =>
             void inOrder(async () => {
@@ -121,14 +122,21 @@ export function App({ initial }: { initial: SessionInfo }) {
                 setMessage(`Kept ${count(ids.length)}, but their files could not be put back now (${(e as Error).message}); keep them again later to retry.`);
               }
             }).catch((e: Error) => setMessage(`Not recorded: ${e.message}`)),
-        });
-      },
-      (e: Error) => setMessage(`Not recorded: ${e.message}`),
-    );
+      });
+    }).catch((e: Error) => setMessage(`Not recorded: ${e.message}`));
   };
 
+  // Undo takes back the latest batch of decisions, whoever made it; one made by someone else or
+  // by a command is named and asked about first.
   const undo = async () => {
-    const r = await api.undo(who);
+    const last = await api.lastBatch();
+    if (!last) return setMessage('Nothing left to undo.');
+    const own = last.source !== 'command' && last.who === who;
+    if (own) return takeBack(last.batch);
+    setConfirm({ request: undoQuestion(last), run: () => void inOrder(() => takeBack(last.batch)).catch((e: Error) => setMessage(`Undo failed: ${e.message}`)) });
+  };
+  const takeBack = async (batch: string) => {
+    const r = await api.undo(who, batch);
     if (!r.batch) return setMessage('Nothing left to undo.');
     for (const d of [null, 'keep', 'set-aside'] as const) {
       const ids = new Set(r.events.filter((e) => e.decision === d).map((e) => e.id));

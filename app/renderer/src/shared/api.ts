@@ -3,7 +3,7 @@
  * so the same code runs against the loopback server (browser mode) and the custom protocol
  * (Electron). Errors arrive as {code, message} and are thrown as ApiFailure with that code.
  */
-import type { ApplyInfo, ApplyPlan, AuditReport, CalibrationResult, DecideResult, Decision, DeploymentCount, EventDetail, EventPage, ScanJobState, SessionInfo, TaskState, UndoResult } from '../../../../src/shared/review-api';
+import type { ApplyInfo, ApplyPlan, AuditReport, CalibrationResult, DecideResult, Decision, DeploymentCount, EventDetail, EventPage, LastBatch, ScanJobState, SessionInfo, TaskState, UndoResult } from '../../../../src/shared/review-api';
 import type { DeploymentHealth } from '../../../../src/shared/health';
 import type { ViewFilter } from './view-filter';
 
@@ -57,7 +57,8 @@ export const api = {
   deployments: () => call<DeploymentCount[]>('api/deployments'),
   health: () => call<DeploymentHealth[]>('api/health'),
   decide: (events: string[], decision: Decision, source: 'single' | 'bulk', who: string) => call<DecideResult>('api/decisions', post({ events, decision, source, who })),
-  undo: (who: string) => call<UndoResult>('api/decisions/undo', post({ who })),
+  undo: (who: string, batch?: string) => call<UndoResult>('api/decisions/undo', post({ who, batch })),
+  lastBatch: () => call<LastBatch | null>('api/decisions/last'),
   previewUrl: (id: string, kind: 'frame' | 'heat', position: number) => `api/events/${id}/preview/${kind}/${position}`,
   mediaUrl: (id: number) => `api/media/${id}`,
 

@@ -3,7 +3,7 @@
  * (nothing moves until someone applies), but a wrong mark can still cost an animal later, so we
  * ask whenever many events go at once or the screener saw motion in any of them.
  */
-import type { Verdict } from '../../../../src/shared/review-api';
+import type { LastBatch, Verdict } from '../../../../src/shared/review-api';
 import type { ConfirmRequest } from './confirm-dialog';
 import { count } from './format';
 
@@ -31,5 +31,16 @@ export function keepMovedQuestion(n: number, movedEvents: number, files: number)
       'Keeping puts them back where they came from, each checked against the SHA-256 taken when it was moved.',
     ],
     yesLabel: `Yes, keep and put back ${count(files)}`,
+  };
+}
+
+/** Undoing decisions someone else made, or a command did: say whose, how and when. */
+export function undoQuestion(b: LastBatch): ConfirmRequest {
+  const what = b.decision === 'keep' ? 'kept' : 'set aside';
+  const how = b.source === 'command' ? 'with the movesift decide command' : 'in the app';
+  return {
+    title: `Undo ${count(b.events)} decision${b.events === 1 ? '' : 's'} made by ${b.who ?? 'someone unnamed'}?`,
+    lines: [`The latest decisions were made ${how} by ${b.who ?? 'someone unnamed'} at ${b.at.replace('T', ' ').replace(/\.\d+Z$|Z$/, ' UTC')}: ${count(b.events)} event${b.events === 1 ? '' : 's'} ${what}.`, 'Undo puts back the decisions those events had before; it moves no file.'],
+    yesLabel: `Yes, undo ${count(b.events)}`,
   };
 }
