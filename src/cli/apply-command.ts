@@ -81,7 +81,8 @@ export async function undoCommand(argv: string[]): Promise<number> {
   if (events?.some((e) => !/^e[0-9a-f]{12}$/.test(e))) throw usageError(`undo --events: wanted event ids like e0123456789ab, comma-separated, got ${JSON.stringify(values.events)}`);
   const s = await undoApply({ ledger: positionals[0], applyId, events });
   for (const p of s.recovered.problems) console.error(`movesift undo: ${p}`);
-  console.log(`Put back ${s.restored} file(s)${s.applies.length ? ` from apply ${s.applies.join(', ')}` : ''}.`);
+  if (!s.restored && !s.problems.length) console.log('Nothing to put back: no file of this ledger is in a set-aside folder now.');
+  else console.log(`Put back ${s.restored} file(s)${s.applies.length ? ` from apply ${s.applies.join(', ')}` : ''}.`);
   for (const p of s.problems) console.error(`  not put back (${p.code}): ${p.message}`);
   return s.problems.length ? ExitCode.failure : ExitCode.done;
 }

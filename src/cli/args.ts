@@ -10,8 +10,17 @@ export function parse<T extends Flags>(argv: string[], options: NonNullable<Pars
     const r = parseArgs({ args: argv, options: { ...options, help: { type: 'boolean', short: 'h' } }, allowPositionals: true, strict: true });
     return { values: r.values as T & { help?: boolean }, positionals: r.positionals };
   } catch (e) {
-    throw usageError(`${(e as Error).message.split('\n')[0]}. See \`movesift ${command} --help\`.`);
+    throw usageError(`${plainParseError(e as Error & { code?: string })} See \`movesift ${command} --help\`.`);
   }
+}
+
+/** node:util parseArgs's messages, said as a person would (its codes are documented; the text is
+ *  its own, so the option's name is read out of it). */
+function plainParseError(e: Error & { code?: string }): string {
+  const opt = /'(-{1,2}[\w-]+)/.exec(e.message)?.[1];
+  if (e.code === 'ERR_PARSE_ARGS_UNKNOWN_OPTION') return `${opt ?? 'that option'} is not an option of this command.`;
+  if (e.code === 'ERR_PARSE_ARGS_INVALID_OPTION_VALUE') return /argument missing/.test(e.message) ? `${opt ?? 'an option'} needs a value after it.` : `${opt ?? 'an option'} takes no value.`;
+  return `${e.message.split('\n')[0]}.`;
 }
 
 export function numberFlag(name: string, v: string | undefined, lo: number, hi: number, integer = false): number | undefined {

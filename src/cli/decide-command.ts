@@ -44,6 +44,10 @@ export async function decideCommand(argv: string[]): Promise<number> {
   const db = openLedger(positionals[0]);
   try {
     const q = createReviewQueries(db);
+    if (values.deployment) {
+      const known = q.summary().map((r) => r.deployment);
+      if (!known.includes(values.deployment)) throw usageError(`--deployment: no deployment ${JSON.stringify(values.deployment)} in this ledger; it has ${[...new Set(known)].map((d) => JSON.stringify(d)).join(', ') || 'none'}.`);
+    }
     const ids = q.matchingIds({ verdict: values.verdict, scoreBelow, deployment: values.deployment, ids: values.event });
     const unknown = (values.event ?? []).filter((id) => !ids.includes(id));
     if (unknown.length) console.error(`movesift decide: no analysed event ${unknown.join(', ')}; left out.`);

@@ -13,6 +13,8 @@ import { auditCommand } from './audit-command.js';
 import { exportCommand } from './export-command.js';
 import { calibrateCommand } from './calibrate-command.js';
 import { cutCommand } from './cut-command.js';
+import { ENGINE_VERSION } from '../pipeline/engine-version.js';
+import pkg from '../../package.json' with { type: 'json' };
 
 const HELP = `Usage: movesift <command> [options]
 
@@ -30,7 +32,7 @@ Commands:
   calibrate <ledger> --recall 0.99     the likely-blank threshold from people's labels
   cut <ledger> --out <folder>          each clip's activity windows as separate files, with a MaxN sheet
 
-Run \`movesift <command> --help\` for a command's options.`;
+Run \`movesift <command> --help\` for a command's options; \`movesift --version\` for the version.`;
 
 const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand, review: reviewCommand, decide: decideCommand, apply: applyCommand, undo: undoCommand, audit: auditCommand, export: exportCommand, calibrate: calibrateCommand, cut: cutCommand };
 
@@ -39,6 +41,10 @@ export async function main(argv: string[]): Promise<number> {
   if (!cmd || cmd === '--help' || cmd === '-h' || cmd === 'help') {
     console.log(HELP);
     return cmd ? ExitCode.done : ExitCode.usage;
+  }
+  if (cmd === '--version' || cmd === '-V') {
+    console.log(`movesift ${pkg.version} (engine ${ENGINE_VERSION})`);
+    return ExitCode.done;
   }
   const run = COMMANDS[cmd];
   if (!run) {
@@ -49,11 +55,14 @@ export async function main(argv: string[]): Promise<number> {
     return await run(rest);
   } catch (e) {
     const code = (e as { code?: string }).code;
+    // Messages may name their command themselves ("scan: give at least one folder"); the prefix
+    // below already does.
+    const message = (e as Error).message.replace(new RegExp(`^${cmd}(: | (?=-))`), '');
     if (code && USAGE_CODES.has(code)) {
-      console.error(`movesift ${cmd}: ${(e as Error).message}`);
+      console.error(`movesift ${cmd}: ${message}`);
       return ExitCode.usage;
     }
-    console.error(`movesift ${cmd} failed${code ? ` (${code})` : ''}: ${(e as Error).message}`);
+    console.error(`movesift ${cmd} failed${code ? ` (${code})` : ''}: ${message}`);
     return ExitCode.failure;
   }
 }

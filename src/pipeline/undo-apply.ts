@@ -5,6 +5,7 @@
  * once the originals are confirmed intact. Journalled like apply, so a crash is recovered.
  */
 import { promises as fs } from 'node:fs';
+import path from 'node:path';
 import { openLedger } from '../ledger/open-ledger.js';
 import { createMoveStore } from '../ledger/move-store.js';
 import { pipelineError, PipelineErrorCode } from './pipeline-errors.js';
@@ -53,6 +54,23 @@ export async function undoApply(o: { ledger: string; applyId?: number; events?: 
       }
     }
     for (const id of summary.applies) if (store.moved(id).length === 0) store.endApply(id, 'undone');
+    // The folders apply made below its set-aside folder, where undo emptied them (rmdir refuses
+    // any that still hold something; the set-aside folder itself is the person's and stays).
+    for (const id of summary.applies) {
+      const target = store.apply(id)?.target;
+      if (!target) continue;
+      const dirs = new Set(rows.filter((m) => m.apply_id === id).map((m) => path.dirname(m.dest)));
+      for (let dir of [...dirs].sort((a, b) => b.length - a.length)) {
+        while (dir.startsWith(target + path.sep) && dir !== target) {
+          try {
+            await fs.rmdir(dir);
+          } catch {
+            break;
+          }
+          dir = path.dirname(dir);
+        }
+      }
+    }
     return summary;
   } finally {
     db.close();

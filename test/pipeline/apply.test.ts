@@ -68,6 +68,9 @@ describe('movesift apply and undo', () => {
     expect(u.stdout).toContain(`Put back ${moved.length} file(s)`);
     for (const [f, h] of hashes) expect(sha(path.join(cards, f))).toBe(h);
     expect(rows<{ status: string }>(ledger, 'SELECT status FROM applies')[0].status).toBe('undone');
+    // No empty folders left behind: the set-aside folder holds only its manifest again.
+    expect(readdirSync(aside)).toEqual(['movesift-manifest-1.csv']);
+    expect(runCli(['undo', ledger]).stdout).toContain('Nothing to put back: no file of this ledger is in a set-aside folder now.');
   });
 
   it('a rescan after apply keeps the set-aside events and their decisions, and after undo finds the files again', () => {
@@ -150,7 +153,7 @@ describe('movesift apply and undo', () => {
     expect(readdirSync(cards)).toHaveLength(32); // the originals stayed
     expect(rows<{ method: string }>(ledger, "SELECT method FROM moves WHERE state = 'moved'").every((m) => m.method === 'copy-kept')).toBe(true);
     expect(runCli(['undo', ledger]).code).toBe(0);
-    expect(readdirSync(path.join(copyTo, 'cards'))).toHaveLength(0); // the copies are gone, the originals checked
+    expect(existsSync(path.join(copyTo, 'cards'))).toBe(false); // the copies are gone, the originals checked, and the folders apply made
   });
 
   it('refuses before moving anything when the disk has no room', () => {

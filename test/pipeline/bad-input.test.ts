@@ -147,6 +147,20 @@ describe('bad usage', () => {
     expect(bad.stderr).toMatch(/--analysis-width: wanted integer 64-4096, got "wide"/);
     expect(runCli(['frobnicate']).code).toBe(2);
   });
+  it('says usage problems plainly: no doubled prefix, no parser text, a version, a misspelt deployment named', () => {
+    expect(runCli(['scan']).stderr.trim()).toBe('movesift scan: give at least one folder to scan. See `movesift scan --help`.');
+    expect(runCli(['scan', 'x', '--bogus']).stderr.trim()).toBe('movesift scan: --bogus is not an option of this command. See `movesift scan --help`.');
+    expect(runCli(['report', 'x.ledger', '--format']).stderr.trim()).toBe('movesift report: --format needs a value after it. See `movesift report --help`.');
+    const v = runCli(['--version']);
+    expect(v.code).toBe(0);
+    expect(v.stdout).toMatch(/^movesift \d+\.\d+\.\d+ \(engine \d+\.\d+\.\d+\+[0-9a-f]{10}\.r\d+\)\n$/);
+    const d = tempDir();
+    const ledger = path.join(d, 'l.ledger');
+    expect(runCli(['scan', path.join(ROOT, 'sample-media/ridge-trail'), '--ledger', ledger]).code).toBe(0);
+    const typo = runCli(['decide', ledger, '--set-aside', '--deployment', 'ridge-trial']);
+    expect(typo.code).toBe(2);
+    expect(typo.stderr.trim()).toBe('movesift decide: --deployment: no deployment "ridge-trial" in this ledger; it has "ridge-trail".');
+  });
   it('prints help for every command', () => {
     for (const c of ['scan', 'report', 'decide']) {
       const r = runCli([c, '--help']);
