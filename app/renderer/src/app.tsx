@@ -281,7 +281,7 @@ export function App({ initial }: { initial: SessionInfo }) {
       ))}
       {view === 'audit' && <AuditView who={who} bindActions={bindAudit} renderEvent={(id, position) => <EventDetailView key={id} id={id} heat={heat} decision={undefined} position={position} problems={problems} bindActions={bindActions} />} />}
       {view === 'act' && <ActPanel who={who} initialTask={session.task} ask={ask} onChanged={() => pages.reload()} />}
-      {view === 'detail' && current && <EventDetailView id={current.id} heat={heat} decision={current.decision} position={`${count(focus + 1)} of ${count(total)}`} problems={problems} bindActions={bindActions} />}
+      {view === 'detail' && current && <EventDetailView id={current.id} heat={heat} decision={current.decision} position={`${count(focus + 1)} of ${count(total)}`} problems={problems} bindActions={bindActions} onAct={act} />}
       <footer className="status-line" data-testid="status-line" role="status">
         {pages.error ? `Could not load events: ${pages.error}` : message}
       </footer>

@@ -16,9 +16,11 @@ interface Props {
   /** Camera problems of every deployment; those that concern this trigger are shown. */
   problems: readonly Problem[];
   bindActions(fn: ((a: Action) => boolean) | null): void;
+  /** The same actions as the keys, for a mouse (the audit view has its own yes/no). */
+  onAct?(a: Action): void;
 }
 
-export function EventDetailView({ id, heat, position, decision: current, problems, bindActions }: Props) {
+export function EventDetailView({ id, heat, position, decision: current, problems, bindActions, onAct }: Props) {
   const { event, error } = useEventDetail(id);
   if (error) return <div className="detail detail-error">This event could not be loaded: {error}</div>;
   if (!event) return <div className="detail detail-loading">Loading…</div>;
@@ -33,6 +35,19 @@ export function EventDetailView({ id, heat, position, decision: current, problem
         <span>{event.deployment}</span>
         <span>{shortTime(event.start)}</span>
         <span className="card-dim">engine {event.engine_version}</span>
+        {onAct && (
+          <span className="detail-actions">
+            <button type="button" onClick={() => onAct('keep')}>
+              Keep <kbd>k</kbd>
+            </button>
+            <button type="button" onClick={() => onAct('set-aside')}>
+              Set aside <kbd>s</kbd>
+            </button>
+            <button type="button" onClick={() => onAct('undo')}>
+              Undo <kbd>u</kbd>
+            </button>
+          </span>
+        )}
       </div>
       <RuleNote event={event} />
       <EventProblems problems={problems.filter((p) => p.eventIds.includes(event.id))} />
