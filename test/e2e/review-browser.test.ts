@@ -171,6 +171,9 @@ describe('review app in Chromium', () => {
     await page.locator(`.card[data-event="${clip.id}"]`).click();
     await page.keyboard.press('Enter');
     await until('the clip to load', async () => (await page.locator('[data-testid=clip-video]').evaluate((v: HTMLVideoElement) => v.readyState)) >= 2);
+    // The player fills the page's width or most of its height, not a small box in an empty page.
+    const [player, viewport] = [(await page.locator('[data-testid=clip-video]').boundingBox())!, page.viewportSize()!];
+    expect(player.width >= 0.9 * (viewport.width - 40) || player.height >= 0.6 * viewport.height).toBe(true);
     const now = () => page.locator('[data-testid=clip-video]').evaluate((v: HTMLVideoElement) => v.currentTime);
     for (const w of windows.filter((w) => w.start_s > 0.05)) {
       await page.keyboard.press(']');
