@@ -136,7 +136,7 @@ export function createHandler(o: HandlerOptions): Handler {
         if (e instanceof HttpError) return errorResponse(e.status, e.code, e.message);
         if (e instanceof URIError) return errorResponse(400, ApiErrorCode.badRequest, 'malformed percent-encoding in the path');
         const code = (e as { code?: string }).code;
-        if (typeof code === 'string' && code.startsWith('E_LEDGER')) return errorResponse(code === 'E_LEDGER_MISSING' ? 404 : 400, code, (e as Error).message);
+        if (typeof code === 'string' && code.startsWith('E_LEDGER')) return errorResponse(code === 'E_LEDGER_MISSING' ? 404 : code === 'E_LEDGER_BUSY' ? 409 : 400, code, (e as Error).message);
         // A refusal from the layers below (a name clash, too few labels, nothing set aside...):
         // the request was understood, the ledger's state does not allow it.
         if (e instanceof MovesiftError) return errorResponse(NOT_FOUND_CODES.has(e.code) ? 404 : e.code === 'E_INVALID_ARGUMENT' || e.code === 'E_DEPLOYMENTS_TABLE' ? 400 : 409, e.code, e.message);

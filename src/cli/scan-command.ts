@@ -40,6 +40,7 @@ export function formatSummary(s: ScanSummary, health: readonly ReportDeployment[
   return [
     `${s.stopped ? 'Stopped' : 'Scanned'} ${s.files} file(s) into ${s.events} event(s) in ${s.seconds.toFixed(1)} s (${s.analysed} screened now, ${s.skipped} unchanged and skipped).`,
     `Verdicts: ${v['likely-blank'] ?? 0} likely-blank, ${v.unsure ?? 0} unsure, ${v.motion ?? 0} motion.`,
+    ...(s.tookOverLock ? [`(The ledger's lock was left by ${s.tookOverLock.command}, process ${s.tookOverLock.pid}, since ${s.tookOverLock.since}, which is no longer running; this scan took it over.)`] : []),
     s.errors ? `${s.errors} file(s) could not be screened; they are listed with a reason in the report's "errors" and are never set aside.` : 'Every file could be read.',
     'Nothing was moved or deleted: likely-blank is a proposal for a person to confirm.',
     ...(problems.length ? [`Camera problems (check these triggers before trusting their verdicts):`, ...problems] : health.length ? [`No camera problems found in ${health.length} deployment(s) (clock, lens, night lamp).`] : []),

@@ -17,6 +17,7 @@ import { createMoveStore, type MoveCandidate, type MoveStore } from '../ledger/m
 import { pipelineError, PipelineErrorCode } from './pipeline-errors.js';
 import { exists, moveVerified, sha256File } from './safe-move.js';
 import { recoverMoves, type Recovery } from './recover-moves.js';
+import { acquireLedgerLock, type LedgerLock } from '../ledger/ledger-lock.js';
 import { writeManifest } from './apply-manifest.js';
 
 export interface ApplyOptions {
@@ -109,9 +110,13 @@ async function preflight(store: MoveStore, plan: PlannedMove[], to: string, copy
 export async function applyDecisions(o: ApplyOptions): Promise<ApplySummary> {
   const to = path.resolve(o.to);
   const db = openLedger(o.ledger);
+  // A dry run only reads: no lock, and no move recovery, which would settle the journal rows of
+  // an apply running now in another process (it deleted a live apply's part file once).
+  let lock: LedgerLock | undefined;
   try {
+    lock = o.dryRun ? undefined : acquireLedgerLock(o.ledger, 'apply');
     const store = createMoveStore(db);
-    const recovered = await recoverMoves(store);
+    const recovered = o.dryRun ? { finished: 0, reversed: 0, problems: [] } : await recoverMoves(store);
     const plan = planMoves(store.candidates(), to);
     const bytes = plan.reduce((a, p) => a + p.candidate.size, 0);
     const summary: ApplySummary = { applyId: null, dryRun: !!o.dryRun, planned: plan, bytes, moved: 0, skipped: [], recovered, manifest: null, stopped: false };
@@ -160,5 +165,6 @@ export async function applyDecisions(o: ApplyOptions): Promise<ApplySummary> {
     return summary;
   } finally {
     db.close();
+    lock?.release();
   }
 }

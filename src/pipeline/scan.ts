@@ -22,6 +22,7 @@ import { deploymentStrip } from './deployment-strip.js';
 import { MIN_CONSENSUS_FRAMES } from '../kernels/data-strip.js';
 import { calibrationNote, deploymentPass } from './deployment-pass.js';
 import { isoPlusSeconds } from '../media/capture-time.js';
+import { acquireLedgerLock, type LedgerLock, type LockHolder } from '../ledger/ledger-lock.js';
 
 export interface ScanOptions {
   roots: string[];
@@ -52,6 +53,8 @@ export interface ScanSummary {
   errors: number;
   verdicts: Record<string, number>;
   seconds: number;
+  /** A lock left by a scan, apply or undo that died, taken over (ledger-lock.ts). */
+  tookOverLock?: LockHolder;
 }
 
 export const DEFAULTS = { analysisWidth: 384, videoFps: 4, eventGapS: 5 } as const;
@@ -73,6 +76,13 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
   const found: FoundFile[][] = [];
   for (const r of roots) found.push(await findMedia(r, [cacheDirOf(o.ledger)])); // a missing folder throws before the ledger is touched
   const db = openLedger(o.ledger, { create: true });
+  let lock: LedgerLock;
+  try {
+    lock = acquireLedgerLock(o.ledger, 'scan');
+  } catch (e) {
+    db.close();
+    throw e;
+  }
   const store = createScanStore(db);
   const hash = paramHash(settings);
   const scanId = store.startScan(roots, { ...settings, eventGapS: gap, deploymentCut: !!o.deploymentCut }, ENGINE_VERSION);
@@ -80,7 +90,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
   const pool = !o.runner && workers > 1 ? createWorkerPool(workers) : undefined;
   const runner = (t: EventTask): Promise<TaskOutcome> => (pool ? pool.run(t) : safeOutcome(t, o.runner ?? runEventTask));
   const cacheDir = cacheDirOf(o.ledger);
-  const summary: ScanSummary = { scanId, stopped: false, files: 0, events: 0, analysed: 0, skipped: 0, errors: 0, verdicts: { 'likely-blank': 0, unsure: 0, motion: 0 }, seconds: 0 };
+  const summary: ScanSummary = { scanId, stopped: false, files: 0, events: 0, analysed: 0, skipped: 0, errors: 0, verdicts: { 'likely-blank': 0, unsure: 0, motion: 0 }, seconds: 0, tookOverLock: lock.tookOver };
   try {
     const totalFiles = found.reduce((a, f) => a + f.length, 0);
     summary.files = totalFiles;
@@ -234,6 +244,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
   } finally {
     await pool?.close();
     db.close();
+    lock.release();
   }
 }
 

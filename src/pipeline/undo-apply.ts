@@ -10,6 +10,7 @@ import { openLedger } from '../ledger/open-ledger.js';
 import { createMoveStore } from '../ledger/move-store.js';
 import { pipelineError, PipelineErrorCode } from './pipeline-errors.js';
 import { recoverMoves, type Recovery } from './recover-moves.js';
+import { acquireLedgerLock, type LedgerLock } from '../ledger/ledger-lock.js';
 import { exists, moveVerified, sha256File } from './safe-move.js';
 
 export interface UndoSummary {
@@ -23,7 +24,9 @@ export interface UndoSummary {
  *  from whichever apply moved them; the rest of each apply stays where it is. */
 export async function undoApply(o: { ledger: string; applyId?: number; events?: readonly string[]; onFile?: (done: number, total: number, file: string) => void }): Promise<UndoSummary> {
   const db = openLedger(o.ledger);
+  let lock: LedgerLock | undefined;
   try {
+    lock = acquireLedgerLock(o.ledger, 'undo');
     const store = createMoveStore(db);
     if (o.applyId !== undefined && !store.apply(o.applyId)) throw pipelineError(PipelineErrorCode.unknownApply, `no apply ${o.applyId} in this ledger; \`movesift undo --list\` shows them`);
     const recovered = await recoverMoves(store);
@@ -74,5 +77,6 @@ export async function undoApply(o: { ledger: string; applyId?: number; events?: 
     return summary;
   } finally {
     db.close();
+    lock?.release();
   }
 }

@@ -12,6 +12,10 @@ import path from 'node:path';
 import Database from 'better-sqlite3';
 import { describe, expect, it } from 'vitest';
 import { ROOT, runCli, startCli, tempDir } from '../helpers/cli.js';
+import { openLedger } from '../../src/ledger/open-ledger.js';
+import { createMoveStore } from '../../src/ledger/move-store.js';
+import { withLedgerLock } from '../../src/ledger/ledger-lock.js';
+import { recoverMoves } from '../../src/pipeline/recover-moves.js';
 
 const sha = (f: string): string => createHash('sha256').update(readFileSync(f)).digest('hex');
 
@@ -201,7 +205,7 @@ describe('movesift apply and undo', () => {
     }
   });
 
-  it('recovers crashes injected at each step: before the move, mid-copy, between copy and remove, mid-undo', () => {
+  it('recovers crashes injected at each step: before the move, mid-copy, between copy and remove, mid-undo', async () => {
     const { cards, ledger, hashes } = setup();
     const aside = tempDirOn('/dev/shm');
     expect(runCli(['apply', ledger, '--to', aside]).code).toBe(0);
@@ -226,10 +230,15 @@ describe('movesift apply and undo', () => {
     cpSync(d.dest, d.source);
     set.run('restoring', d.id);
     db.close();
-    // The next run (a dry run is enough) settles every one of them before doing anything else.
+    // The next apply or undo settles every one of them, under the ledger's lock, before doing
+    // anything else (a dry run only reads: it must not touch a journal a live apply writes).
     const dry = runCli(['apply', ledger, '--to', aside, '--dry-run']);
     expect(dry.code, dry.stderr).toBe(0);
-    expect(dry.stdout).toContain('An earlier run was interrupted: 2 move(s) finished, 2 left undone');
+    expect(dry.stdout).not.toContain('An earlier run was interrupted');
+    const held = openLedger(ledger);
+    const recovered = await withLedgerLock(ledger, 'test', () => recoverMoves(createMoveStore(held)));
+    held.close();
+    expect(recovered).toMatchObject({ finished: 2, reversed: 2 });
     const state = new Map(rows<{ id: number; state: string }>(ledger, 'SELECT id, state FROM moves').map((m) => [m.id, m.state]));
     expect(state.get(a.id)).toBe('failed'); // reversed: the file never left home
     expect(existsSync(a.source) && !existsSync(a.dest)).toBe(true);
