@@ -36,7 +36,7 @@ import { readDeploymentsTable } from '../pipeline/deployments-table.js';
 import { cutWindows } from '../pipeline/cut-windows.js';
 import { ENGINE_VERSION } from '../pipeline/engine-version.js';
 import { ApiErrorCode, HttpError, badRequest, json } from './api-errors.js';
-import { EVENT_ID_RE, readJson, userPath, who } from './request-params.js';
+import { EVENT_ID_RE, eventIds, readJson, userPath, who } from './request-params.js';
 import type { TaskJobs } from './task-jobs.js';
 import { deploymentsHealth } from '../pipeline/report.js';
 import { healthRows } from '../ledger/report-rows.js';
@@ -45,10 +45,6 @@ function num(v: unknown, name: string, lo: number, hi: number, integer = false):
   const x = typeof v === 'string' && v !== '' ? Number(v) : v;
   if (typeof x !== 'number' || !Number.isFinite(x) || x < lo || x > hi || (integer && !Number.isInteger(x))) throw badRequest(`${name}: wanted ${integer ? 'integer' : 'number'} ${lo}-${hi}, got ${JSON.stringify(v)}`);
   return x;
-}
-function eventIdList(v: unknown): string[] {
-  if (!Array.isArray(v) || v.length > 100_000 || v.some((e) => typeof e !== 'string' || !/^e[0-9a-f]{12}$/.test(e))) throw badRequest(`events: wanted a list of event ids, got ${JSON.stringify(v).slice(0, 80)}`);
-  return v as string[];
 }
 const optional = <T>(v: unknown, f: () => T): T | undefined => (v === undefined || v === null || v === '' ? undefined : f());
 
@@ -79,12 +75,12 @@ export async function actionRoute(req: Request, parts: string[], url: URL, ledge
     only('POST');
     const b = await readJson(req);
     const applyId = optional(b.apply, () => num(b.apply, 'apply', 1, 1e12, true));
-    const events = optional(b.events, () => eventIdList(b.events));
+    const events = optional(b.events, () => eventIds(b.events));
     return json(tasks.start('undo', (report) => undoApply({ ledger, applyId, events, onFile: (d, t, f) => report(d, t, f) })), 202);
   }
   if (what === 'moved' && parts.length === 2) {
     only('GET');
-    const ids = eventIdList((q.get('events') ?? '').split(',').filter(Boolean));
+    const ids = eventIds((q.get('events') ?? '').split(',').filter(Boolean));
     const db = openLedger(ledger);
     try {
       const moved = createMoveStore(db).movedOfEvents(ids);
