@@ -46,9 +46,12 @@ export function parseFilter(q: URLSearchParams): EventFilter & { withTotal: bool
   };
 }
 
+/** The largest request body taken; the loopback server refuses a longer one as it streams in. */
+export const MAX_BODY_BYTES = 16 << 20;
+
 export async function readJson(req: Request): Promise<Record<string, unknown>> {
   const text = await req.text();
-  if (text.length > 16 << 20) throw badRequest('body: wanted at most 16 MiB');
+  if (text.length > MAX_BODY_BYTES) throw badRequest('body: wanted at most 16 MiB');
   try {
     const v = text ? JSON.parse(text) : {};
     if (typeof v !== 'object' || v === null || Array.isArray(v)) throw new Error();

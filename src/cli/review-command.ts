@@ -12,8 +12,14 @@ Opens the review app in your browser: a keyboard-driven grid of the ledger's eve
 at a time with its frames or its clip, and decisions recorded in the ledger. Without a ledger
 it starts on the screen that opens one or scans folders. Press ? in the app for every key.
 
-The server listens on 127.0.0.1 only, on a random port, and answers only the address it prints
-(which carries a one-time secret). Nothing is moved or deleted from the app.
+What the app can do to files: it records decisions in the ledger; it moves (or copies) the files
+of set-aside events into a folder you name and puts them back (apply and undo, each asked for
+with a button and a question first); it writes exports and clips into folders you name, never
+over the ledger or a scanned file. It never deletes a photo or a clip.
+
+The server listens on 127.0.0.1 only, on a random port, and answers only the address it prints.
+That address carries a secret good once: the browser that opens it is signed in, and the address
+opens nothing afterwards. Requests that change anything are taken only from the app's own page.
 
 Options:
   --port <n>     port to listen on                       default: a free one

@@ -6,6 +6,7 @@ import { DEFAULTS, scan, type ScanSummary } from '../pipeline/scan.js';
 import { ledgerHealth, type ReportDeployment } from '../pipeline/report.js';
 import { DEFAULT_EVENT_GAP_S } from '../pipeline/group-events.js';
 import os from 'node:os';
+import type { SkipReasonName } from '../media/find-media.js';
 
 /** One core is left to decoding (libvips and ffmpeg run their own threads) and the desktop. */
 const DEFAULT_WORKERS = Math.max(1, Math.min(8, os.availableParallelism() - 1));
@@ -34,14 +35,27 @@ Options:
 
 Exit status: 0 done (files that failed are recorded as errors), 1 failed or stopped, 2 bad usage.`;
 
+/** The words for each reason an entry was passed over (find-media.ts SkipReason). */
+const PASSED_OVER: Record<SkipReasonName, string> = {
+  'not-media': 'not a photo or clip by its name',
+  'hidden-or-system': 'hidden or system',
+  'not-a-regular-file': 'not a regular file (a pipe, socket or device)',
+  'broken-link': 'broken or looping link',
+  'unreadable-folder': 'folder that could not be listed',
+  'folder-already-scanned': 'link to a folder already scanned',
+  'ledger-files': "the ledger's own files",
+};
+
 export function formatSummary(s: ScanSummary, health: readonly ReportDeployment[] = []): string {
   const v = s.verdicts;
+  const passed = Object.entries(s.passedOver).map(([reason, n]) => `${n} ${PASSED_OVER[reason as SkipReasonName]}`);
   const problems = health.flatMap((d) => d.health.map((f) => `  ${d.id}: ${f.message}`));
   return [
     `${s.stopped ? 'Stopped' : 'Scanned'} ${s.files} file(s) into ${s.events} event(s) in ${s.seconds.toFixed(1)} s (${s.analysed} screened now, ${s.skipped} unchanged and skipped).`,
     `Verdicts: ${v['likely-blank'] ?? 0} likely-blank, ${v.unsure ?? 0} unsure, ${v.motion ?? 0} motion.`,
     ...(s.tookOverLock ? [`(The ledger's lock was left by ${s.tookOverLock.command}, process ${s.tookOverLock.pid}, since ${s.tookOverLock.since}, which is no longer running; this scan took it over.)`] : []),
     s.errors ? `${s.errors} file(s) could not be screened; they are listed with a reason in the report's "errors" and are never set aside.` : 'Every file could be read.',
+    ...(passed.length ? [`Passed over (not photos or clips; listed in the report's "skipped"): ${passed.join(', ')}.`] : []),
     'Nothing was moved or deleted: likely-blank is a proposal for a person to confirm.',
     ...(problems.length ? [`Camera problems (check these triggers before trusting their verdicts):`, ...problems] : health.length ? [`No camera problems found in ${health.length} deployment(s) (clock, lens, night lamp).`] : []),
     ...(s.stopped ? ['Run the same command again to continue where it stopped.'] : []),

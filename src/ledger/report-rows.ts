@@ -22,6 +22,7 @@ export interface ReportEventRow {
 export interface ReportErrorRow {
   file: string;
   root: string;
+  stage: 'read' | 'partial';
   code: string;
   message: string;
 }
@@ -46,8 +47,19 @@ export function reportEvents(db: Ledger): ReportEventRow[] {
 
 export function reportErrors(db: Ledger): ReportErrorRow[] {
   return db
-    .prepare<[], ReportErrorRow>('SELECT s.rel_path AS file, r.path AS root, s.code, s.message FROM scan_errors s JOIN roots r ON r.id = s.root_id ORDER BY r.path, s.rel_path')
+    .prepare<[], ReportErrorRow>('SELECT s.rel_path AS file, r.path AS root, s.stage, s.code, s.message FROM scan_errors s JOIN roots r ON r.id = s.root_id ORDER BY r.path, s.rel_path')
     .all();
+}
+
+export interface ReportSkippedRow {
+  file: string;
+  root: string;
+  reason: string;
+}
+
+/** What the scans passed over, with the reason (media/find-media.ts SkipReason). */
+export function reportSkipped(db: Ledger): ReportSkippedRow[] {
+  return db.prepare<[], ReportSkippedRow>('SELECT s.rel_path AS file, r.path AS root, s.reason FROM scan_skipped s JOIN roots r ON r.id = s.root_id ORDER BY r.path, s.rel_path').all();
 }
 
 export interface HealthRow {

@@ -114,6 +114,8 @@ export function createScanStore(db: Ledger) {
     endScan: db.prepare('UPDATE scans SET finished_at = ?, status = ? WHERE id = ?'),
     verdictCounts: db.prepare<[], { verdict: string; n: number }>('SELECT verdict, count(*) AS n FROM analyses GROUP BY verdict'),
     errorCount: db.prepare<[], { n: number }>('SELECT count(*) AS n FROM scan_errors'),
+    clearSkipped: db.prepare('DELETE FROM scan_skipped WHERE root_id = ?'),
+    putSkipped: db.prepare('INSERT OR REPLACE INTO scan_skipped (root_id, rel_path, reason) VALUES (?, ?, ?)'),
     deploymentsOfRoot: db.prepare<[number], { id: string }>('SELECT id FROM deployments WHERE root_id = ?'),
     // Media an apply moved into a set-aside folder (and no undo brought back): still the
     // ledger's, though a scan of the root no longer finds them.
@@ -181,6 +183,11 @@ export function createScanStore(db: Ledger) {
     startScan: (roots: string[], params: unknown, engine: string): number => Number(s.startScan.run(now(), JSON.stringify(roots), JSON.stringify(params), engine).lastInsertRowid),
     verdictCounts: () => s.verdictCounts.all(),
     errorCount: () => s.errorCount.get()!.n,
+    /** Replaces what the scan of a root passed over (find-media.ts). */
+    replaceSkipped: db.transaction((rootId: number, entries: ReadonlyArray<{ rel: string; reason: string }>) => {
+      s.clearSkipped.run(rootId);
+      for (const e of entries) s.putSkipped.run(rootId, e.rel, e.reason);
+    }),
     deploymentsOfRoot: (rootId: number) => s.deploymentsOfRoot.all(rootId).map((r) => r.id),
     movedAway: (rootId: number) => s.movedAway.all(rootId),
     endScan: (id: number, status: 'done' | 'stopped' | 'failed') => void s.endScan.run(now(), status, id),

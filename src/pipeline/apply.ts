@@ -18,6 +18,7 @@ import { pipelineError, PipelineErrorCode } from './pipeline-errors.js';
 import { exists, moveVerified, sha256File } from './safe-move.js';
 import { recoverMoves, type Recovery } from './recover-moves.js';
 import { acquireLedgerLock, type LedgerLock } from '../ledger/ledger-lock.js';
+import { bytesInWords, diskOf, fsReason } from '../shared/fs-words.js';
 import { writeManifest } from './apply-manifest.js';
 
 export interface ApplyOptions {
@@ -83,16 +84,42 @@ function checkTarget(store: MoveStore, to: string): void {
   }
 }
 
+/** A recursive mkdir that fails part way reports ENOENT for the folder it first tried, whatever
+ *  stopped it above (a read-only file system, no permission); making the first missing folder
+ *  alone tells the true cause. */
+async function trueCause(to: string, e: unknown): Promise<unknown> {
+  if ((e as NodeJS.ErrnoException).code !== 'ENOENT') return e;
+  let first = to;
+  while (!(await exists(path.dirname(first))) && path.dirname(first) !== first) first = path.dirname(first);
+  try {
+    await fs.mkdir(first);
+    await fs.rmdir(first);
+    return e;
+  } catch (cause) {
+    return cause;
+  }
+}
+
 async function preflight(store: MoveStore, plan: PlannedMove[], to: string, copy: boolean): Promise<void> {
   for (const p of plan) if (await exists(p.dest)) throw pipelineError(PipelineErrorCode.nameClash, `${p.dest}: a file of that name is already in the set-aside folder; nothing was moved or overwritten`);
+  // The folders made here are removed again if the apply is refused below, so a refusal leaves
+  // nothing behind (fs.mkdir reports the first folder it made).
+  let made: string | undefined;
+  const unmake = async (): Promise<void> => {
+    for (let d = to; made && d.startsWith(made); d = path.dirname(d)) {
+      await fs.rmdir(d).catch(() => undefined);
+      if (d === made) break;
+    }
+  };
   try {
-    await fs.mkdir(to, { recursive: true });
+    made = await fs.mkdir(to, { recursive: true });
     // Write access is tried, not inferred from permission bits (root, read-only mounts, ACLs).
     const probe = path.join(to, `.movesift-probe-${process.pid}`);
     await fs.writeFile(probe, '');
     await fs.rm(probe);
   } catch (e) {
-    throw pipelineError(PipelineErrorCode.targetUnwritable, `${to}: cannot write there (${(e as NodeJS.ErrnoException).code ?? e}); nothing was moved. Choose a folder you can write to`);
+    await unmake();
+    throw pipelineError(PipelineErrorCode.targetUnwritable, `${to}: cannot write there (${fsReason(await trueCause(to, e))}); nothing was moved. Choose a folder you can write to`);
   }
   const target = await fs.stat(to);
   let needed = 0;
@@ -103,7 +130,11 @@ async function preflight(store: MoveStore, plan: PlannedMove[], to: string, copy
   if (needed > 0) {
     const fsStat = await fs.statfs(to);
     const free = Number(fsStat.bavail) * Number(fsStat.bsize);
-    if (free < needed) throw pipelineError(PipelineErrorCode.diskFull, `${to}: needs ${needed} bytes free for the copies, has ${free}; nothing was moved`);
+    if (free < needed) {
+      const disk = diskOf(to);
+      await unmake();
+      throw pipelineError(PipelineErrorCode.diskFull, `${to}: the ${copy ? 'copies' : 'moves from another disk'} need ${bytesInWords(needed)} but ${disk.name} has ${bytesInWords(free)} free; nothing was moved. Free some space or choose a folder on another disk`);
+    }
   }
 }
 

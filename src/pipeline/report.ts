@@ -1,11 +1,14 @@
 /**
- * The `movesift.report/1` document (DESIGN.md, "Contracts"): every analysed event and every
- * recorded error, paths relative to the scanned folder. Fields may be added; the documented
+ * The `movesift.report/1` document (DESIGN.md, "Contracts"): every analysed event, every
+ * recorded error and every entry the scans passed over, paths relative to the scanned folder.
+ * Each path under a scanned folder is in exactly one of `events[].files`, `errors` (stage
+ * `read`: not screened) and `skipped`; a clip screened only in part (stage `partial`) is both in
+ * its event and in `errors`, which says which part. Fields may be added; the documented
  * ones never change meaning. CSV gives one row per event with the same fields.
  */
 import { openLedger } from '../ledger/open-ledger.js';
 import { createDeploymentPassStore } from '../ledger/deployment-pass-store.js';
-import { healthRows, reportErrors, reportEvents, type HealthRow } from '../ledger/report-rows.js';
+import { healthRows, reportErrors, reportEvents, reportSkipped, type HealthRow } from '../ledger/report-rows.js';
 import { deploymentHealth, type NeighbourRecord } from '../kernels/deployment-health.js';
 import type { DeploymentHealth } from '../shared/health.js';
 import type { SceneSignature } from '../kernels/scene-signature.js';
@@ -56,7 +59,10 @@ export interface Report {
   deployments: ReportDeployment[];
   /** Pass two's calibration per deployment and light mode (deployment-pass.ts). */
   calibrations: ReportCalibration[];
-  errors: Array<{ file: string; code: string; message: string; root: string }>;
+  errors: Array<{ file: string; stage: 'read' | 'partial'; code: string; message: string; root: string }>;
+  /** Entries that are neither media nor errors, with why: not-media, hidden-or-system,
+   *  not-a-regular-file, broken-link, unreadable-folder, folder-already-scanned, ledger-files. */
+  skipped: Array<{ file: string; reason: string; root: string }>;
 }
 
 export function buildReport(ledger: string): Report {
@@ -81,7 +87,7 @@ export function buildReport(ledger: string): Report {
       deployment: c.deployment_id, light: c.light, status: c.status as ReportCalibration['status'], events: c.events, usable: c.usable,
       median: r4(c.median), spread: r4(c.spread), cut: r4(c.cut)!, fittedBlank: r4(c.fitted_blank)!,
     }));
-    return { schema: 'movesift.report/1', events, deployments: deploymentsHealth(healthRows(db)), calibrations, errors: reportErrors(db) };
+    return { schema: 'movesift.report/1', events, deployments: deploymentsHealth(healthRows(db)), calibrations, errors: reportErrors(db), skipped: reportSkipped(db) };
   } finally {
     db.close();
   }

@@ -9,6 +9,7 @@
 import { createHash } from 'node:crypto';
 import { constants, createReadStream, promises as fs } from 'node:fs';
 import path from 'node:path';
+import { diskOf } from '../shared/fs-words.js';
 import { pipelineError, PipelineErrorCode } from './pipeline-errors.js';
 
 export const PART_SUFFIX = '.movesift-part';
@@ -86,7 +87,7 @@ export async function moveVerified(from: string, to: string, sha: string, keepSo
     await fsyncPath(path.dirname(to));
   } catch (e) {
     await fs.rm(tmp, { force: true });
-    if ((e as NodeJS.ErrnoException).code === 'ENOSPC') throw pipelineError(PipelineErrorCode.diskFull, `${path.dirname(to)}: the disk is full; ${from} was left in place`);
+    if ((e as NodeJS.ErrnoException).code === 'ENOSPC') throw pipelineError(PipelineErrorCode.diskFull, `${path.dirname(to)}: ${diskOf(to).name} is full; ${from} was left in place`);
     if ((e as NodeJS.ErrnoException).code === 'EEXIST') throw pipelineError(PipelineErrorCode.nameClash, `${tmp}: a temporary file of that name is already there; nothing was overwritten`);
     throw e;
   }

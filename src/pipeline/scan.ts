@@ -5,7 +5,7 @@
  * this one stopped: what is committed is complete, what is not is redone.
  */
 import path from 'node:path';
-import { findMedia, type FoundFile } from '../media/find-media.js';
+import { findMedia, type Discovery, type FoundFile, type SkipReasonName } from '../media/find-media.js';
 import { openLedger } from '../ledger/open-ledger.js';
 import { createScanStore, type EventPlan, type MediaRow } from '../ledger/scan-store.js';
 import { MAX_EVENT_FRAMES, groupEvents, type Group } from './group-events.js';
@@ -22,7 +22,7 @@ import { deploymentStrip } from './deployment-strip.js';
 import { MIN_CONSENSUS_FRAMES } from '../kernels/data-strip.js';
 import { calibrationNote, deploymentPass } from './deployment-pass.js';
 import { isoPlusSeconds } from '../media/capture-time.js';
-import { acquireLedgerLock, type LedgerLock, type LockHolder } from '../ledger/ledger-lock.js';
+import { acquireLedgerLock, lockFileOf, type LedgerLock, type LockHolder } from '../ledger/ledger-lock.js';
 
 export interface ScanOptions {
   roots: string[];
@@ -55,6 +55,9 @@ export interface ScanSummary {
   seconds: number;
   /** A lock left by a scan, apply or undo that died, taken over (ledger-lock.ts). */
   tookOverLock?: LockHolder;
+  /** Entries under the scanned folders that are neither media nor errors, by reason
+   *  (find-media.ts); the report lists each. */
+  passedOver: Partial<Record<SkipReasonName, number>>;
 }
 
 export const DEFAULTS = { analysisWidth: 384, videoFps: 4, eventGapS: 5 } as const;
@@ -62,6 +65,13 @@ export const DEFAULTS = { analysisWidth: 384, videoFps: 4, eventGapS: 5 } as con
 export function cacheDirOf(ledger: string): string {
   return `${path.resolve(ledger)}.previews`;
 }
+
+/** The ledger's own files (SQLite's beside it, the lock, the previews): passed over when the
+ *  ledger lies in a scanned folder. Names as open-ledger.ts, ledger-lock.ts and cacheDirOf make them. */
+const ledgerFiles = (ledger: string): string[] => {
+  const f = path.resolve(ledger);
+  return [f, `${f}-wal`, `${f}-shm`, `${f}-journal`, lockFileOf(f), cacheDirOf(f)];
+};
 
 const eventIdOf = (deployment: string, firstRel: string): string => 'e' + createHash('sha256').update(`${deployment}\0${firstRel}`).digest('hex').slice(0, 12);
 
@@ -73,8 +83,9 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
   const table = o.deploymentsTable ? readDeploymentsTable(o.deploymentsTable) : new Map<string, DeploymentFacts>();
   const roots = o.roots.map((r) => path.resolve(r));
   emit({ type: 'phase', phase: 'discover' });
-  const found: FoundFile[][] = [];
-  for (const r of roots) found.push(await findMedia(r, [cacheDirOf(o.ledger)])); // a missing folder throws before the ledger is touched
+  const discovered: Discovery[] = [];
+  for (const r of roots) discovered.push(await findMedia(r, ledgerFiles(o.ledger))); // a missing folder throws before the ledger is touched
+  const found = discovered.map((d) => d.files);
   const db = openLedger(o.ledger, { create: true });
   let lock: LedgerLock;
   try {
@@ -90,7 +101,8 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
   const pool = !o.runner && workers > 1 ? createWorkerPool(workers) : undefined;
   const runner = (t: EventTask): Promise<TaskOutcome> => (pool ? pool.run(t) : safeOutcome(t, o.runner ?? runEventTask));
   const cacheDir = cacheDirOf(o.ledger);
-  const summary: ScanSummary = { scanId, stopped: false, files: 0, events: 0, analysed: 0, skipped: 0, errors: 0, verdicts: { 'likely-blank': 0, unsure: 0, motion: 0 }, seconds: 0, tookOverLock: lock.tookOver };
+  const summary: ScanSummary = { scanId, stopped: false, files: 0, events: 0, analysed: 0, skipped: 0, errors: 0, verdicts: { 'likely-blank': 0, unsure: 0, motion: 0 }, seconds: 0, tookOverLock: lock.tookOver, passedOver: {} };
+  for (const d of discovered) for (const x of d.skipped) summary.passedOver[x.reason] = (summary.passedOver[x.reason] ?? 0) + 1;
   try {
     const totalFiles = found.reduce((a, f) => a + f.length, 0);
     summary.files = totalFiles;
@@ -109,7 +121,8 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
         const t = table.get(folder);
         return { id, root_id: rootId, folder, location_name: t?.locationName ?? null, latitude: t?.latitude ?? null, longitude: t?.longitude ?? null, camera_id: t?.cameraID ?? null, camera_model: t?.cameraModel ?? null };
       }));
-      const inv = await takeInventory(found[ri], rootId, deploymentOf, store, (f) => emit({ type: 'progress', phase: 'read', done: ++read, total: totalFiles, file: f.rel }), o.signal);
+      store.replaceSkipped(rootId, discovered[ri].skipped);
+      const inv = await takeInventory(found[ri], rootId, deploymentOf, store, settings.analysisWidth, (f) => emit({ type: 'progress', phase: 'read', done: ++read, total: totalFiles, file: f.rel }), o.signal);
       if (o.signal?.aborted) break;
       db.transaction(() => {
         for (const e of inv.errors) store.putError(rootId, e.rel, e.error, scanId);

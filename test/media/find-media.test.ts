@@ -1,5 +1,8 @@
 /** Discovery: what is media, what is skipped, symlink loops, relative paths. */
 import { mkdirSync, symlinkSync, writeFileSync } from 'node:fs';
+import { execFileSync } from 'node:child_process';
+
+const mkfifoSync = (p: string): void => void execFileSync('mkfifo', [p]);
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { findMedia } from '../../src/media/find-media.js';
@@ -17,11 +20,23 @@ describe('findMedia', () => {
     }
     symlinkSync(d, path.join(d, 'cam/a/up')); // a loop back to the root
     symlinkSync(path.join(d, 'missing'), path.join(d, 'cam/dangling.jpg'));
-    const found = await findMedia(d, [path.join(d, 'cache')]);
+    mkfifoSync(path.join(d, 'cam/pipe.JPG'));
+    mkdirSync(path.join(d, 'cam/folder.JPG'));
+    symlinkSync('loop2.jpg', path.join(d, 'cam/loop1.jpg'));
+    symlinkSync('loop1.jpg', path.join(d, 'cam/loop2.jpg'));
+    const { files: found, skipped } = await findMedia(d, [path.join(d, 'cache')]);
     expect(found.map((f) => `${f.kind}:${f.rel}`).sort()).toEqual(
       ['image:cam/a/IMG_1.JPG', 'image:cam/a/b.jpeg', 'image:cam/c.PNG', 'image:cam/d.tif', 'image:cam/e.webp', 'video:v/clip.MP4', 'video:v/m.m4v', 'video:v/n.MTS', 'video:v/x.mov', 'video:v/y.avi', 'video:v/z.mkv'].sort(),
     );
     expect(found.find((f) => f.rel === 'cam/a/b.jpeg')!.folder).toBe('cam/a');
+    // Every other entry is accounted for once, with its reason.
+    expect(skipped.map((x) => `${x.reason}:${x.rel}`).sort()).toEqual(
+      [
+        'hidden-or-system:.Trashes', 'hidden-or-system:cam/._IMG_1.JPG', 'hidden-or-system:cam/.hidden.jpg', 'hidden-or-system:cam/Thumbs.db',
+        'ledger-files:cache', 'folder-already-scanned:cam/a/up', 'not-media:cam/notes.txt', 'broken-link:cam/dangling.jpg',
+        'broken-link:cam/loop1.jpg', 'broken-link:cam/loop2.jpg', 'not-a-regular-file:cam/pipe.JPG',
+      ].sort(),
+    );
   });
   it('throws E_FOLDER_MISSING for a missing root or a file', async () => {
     await expect(findMedia('/no/such/place')).rejects.toMatchObject({ code: 'E_FOLDER_MISSING' });

@@ -3,8 +3,11 @@
  * symbolic link into the scanned tree is refused (issue 22, item 4: it was let through, and a
  * rescan then counted the set-aside media again), and `apply --dry-run` into a folder inside the
  * scanned tree says what the real apply says instead of "Would move" (issue 23, item 3).
+ * A refused apply says why in words and leaves no folder behind (issue 22, item 10), on real
+ * small file systems (tmpfs mounts; skipped, with the reason, where this process may not mount).
  */
-import { cpSync, existsSync, readdirSync, symlinkSync } from 'node:fs';
+import { cpSync, existsSync, mkdirSync, readdirSync, symlinkSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
 import path from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { scan } from '../../src/pipeline/scan.js';
@@ -46,5 +49,48 @@ describe('where set-aside media may go', () => {
     const r = runCli(['apply', ledger, '--to', path.join(dir, 'aside'), '--dry-run']);
     expect(r.code, r.stderr).toBe(0);
     expect(r.stdout).toMatch(/Would move \d+ file/);
+  });
+});
+
+/** Mounts a tmpfs of `size` at a new folder (read-only with `ro`); undefined when not allowed here. */
+function tmpfs(size: string, ro = false): string | undefined {
+  const at = tempDir('movesift-mnt-');
+  const r = spawnSync('mount', ['-t', 'tmpfs', '-o', `size=${size}${ro ? ',ro' : ''}`, 'tmpfs', at], { encoding: 'utf8' });
+  return r.status === 0 ? at : undefined;
+}
+const umount = (at: string): void => void spawnSync('umount', [at]);
+const canMount = (() => {
+  const at = tmpfs('64k');
+  if (at) umount(at);
+  return at !== undefined;
+})();
+
+describe.skipIf(!canMount)('a refused apply (needs permission to mount a tmpfs)', () => {
+  it('into a read-only file system says so in words and moves nothing', () => {
+    const at = tmpfs('1m', true)!;
+    try {
+      const r = runCli(['apply', ledger, '--to', path.join(at, 'season', 'aside')]);
+      expect(r.code, r.stdout).toBe(2);
+      expect(r.stderr).toContain('cannot write there (the file system is read-only, EROFS); nothing was moved');
+      expect(r.stderr).not.toMatch(/\(ENOENT\)|\(EROFS\)/);
+      expect(readdirSync(path.join(cards, 'ridge-trail'))).toHaveLength(32);
+    } finally {
+      umount(at);
+    }
+  });
+
+  it('onto a disk too small names the disk and its space, and leaves no folder behind', () => {
+    const at = tmpfs('64k')!;
+    try {
+      mkdirSync(path.join(at, 'existing'));
+      const r = runCli(['apply', ledger, '--copy', '--to', path.join(at, 'existing', 'season', 'aside')]);
+      expect(r.code, r.stdout).not.toBe(0);
+      expect(r.stderr).toContain('E_APPLY_DISK_FULL');
+      expect(r.stderr).toMatch(new RegExp(`the copies need [\\d.]+ kB but the disk mounted at ${at} has [\\d.]+ kB free; nothing was moved`));
+      expect(readdirSync(path.join(at, 'existing'))).toEqual([]); // season/aside made and removed again
+      expect(readdirSync(path.join(cards, 'ridge-trail'))).toHaveLength(32);
+    } finally {
+      umount(at);
+    }
   });
 });

@@ -14,6 +14,7 @@ import { scan } from '../../src/pipeline/scan.js';
 import { runEventTask } from '../../src/pipeline/analyse-task.js';
 import { buildReport, type Report } from '../../src/pipeline/report.js';
 import { resolveBinaries } from '../../src/media/ffmpeg-binaries.js';
+import sharp from 'sharp';
 
 const SAMPLE = path.join(ROOT, 'sample-media/ridge-trail');
 
@@ -33,6 +34,16 @@ function buildFolder(): string {
   writeFileSync(path.join(cam, '._IMG_0001.JPG'), 'x');
   writeFileSync(path.join(cam, 'Thumbs.db'), 'x');
   symlinkSync('..', path.join(cam, 'loop')); // a link back up must not make the walk loop
+  // Damage in the middle of the scan data that a 1/8-scale decode does not read (it takes only
+  // the DC coefficients): it once passed the read pass and then failed in its event.
+  const flipped = Buffer.from(readFileSync(path.join(SAMPLE, 'IMG_0005.JPG')));
+  for (let k = 0; k < 40; k++) flipped[Math.floor(flipped.length / 3) + Math.floor((k * flipped.length * 0.6) / 40)] ^= 0xff;
+  writeFileSync(path.join(cam, 'flipped.jpg'), flipped);
+  // Entries that are not regular files, named like photos.
+  spawnSync('mkfifo', [path.join(cam, 'pipe.JPG')]);
+  mkdirSync(path.join(cam, 'folder.JPG'));
+  symlinkSync('gone.JPG', path.join(cam, 'dangling.JPG'));
+  writeFileSync(path.join(cam, 'readme.txt'), 'deployment notes\n');
   // An MP4 with its index (moov) at the end, cut in half: the broken-index case.
   const { ffmpeg } = resolveBinaries();
   const full = path.join(dir, 'full.mp4.tmp');
@@ -90,6 +101,7 @@ describe('bad input in a scanned folder', () => {
       'cam one/letter.jpg': 'E_MEDIA_NOT_MEDIA',
       'cam one/notes.mp4': 'E_MEDIA_NOT_MEDIA',
       'cam one/broken.mp4': 'E_VIDEO_PROBE_FAILED',
+      'cam one/flipped.jpg': 'E_MEDIA_DECODE_FAILED',
     });
     for (const e of report.errors) expect(e.message.startsWith(e.file)).toBe(true);
     const files = report.events.flatMap((e) => e.files).sort();
@@ -97,8 +109,30 @@ describe('bad input in a scanned folder', () => {
     expect(report.events).toHaveLength(1); // the three good frames are one burst by capture time
   });
 
+  it('accounts for every entry under the folder once: screened, an error, or passed over with a reason', async () => {
+    const flipped = readFileSync(path.join(dir, 'cam one/flipped.jpg'));
+    await expect(sharp(flipped, { failOn: 'warning' }).resize(48, 48, { fit: 'inside' }).raw().toBuffer()).resolves.toBeDefined(); // the case is real
+    const where = new Map<string, string[]>();
+    const put = (file: string, what: string): void => void where.set(file, [...(where.get(file) ?? []), what]);
+    for (const e of report.events) for (const f of e.files) put(f, 'screened');
+    for (const e of report.errors) put(e.file, `error:${e.stage}`);
+    for (const x of report.skipped) put(x.file, `skipped:${x.reason}`);
+    // Every entry on disk (folders are walked, so their entries count instead), found independently.
+    const onDisk = spawnSync('find', ['.', '-mindepth', '1', '-not', '-type', 'd', '-o', '-type', 'd', '-empty', '-prune'], { cwd: dir, encoding: 'utf8' }).stdout.trim().split('\n').map((f) => f.slice(2));
+    const walked = onDisk.filter((f) => !f.startsWith('out/') && f !== 'cam one/folder.JPG');
+    for (const f of walked) expect(where.get(f), f).toHaveLength(1);
+    expect(where.get('cam one/flipped.jpg')).toEqual(['error:read']);
+    expect(where.get('cam one/pipe.JPG')).toEqual(['skipped:not-a-regular-file']);
+    expect(where.get('cam one/dangling.JPG')).toEqual(['skipped:broken-link']);
+    expect(where.get('cam one/readme.txt')).toEqual(['skipped:not-media']);
+    expect(where.get('cam one/Thumbs.db')).toEqual(['skipped:hidden-or-system']);
+    expect(where.get('cam one/loop')).toEqual(['skipped:folder-already-scanned']);
+    expect([...where.keys()].filter((f) => !walked.includes(f) && !f.startsWith('out/'))).toEqual([]);
+  });
+
   it('says so in the summary and prints each error', () => {
-    expect(stdout).toContain('5 file(s) could not be screened');
+    expect(stdout).toContain('6 file(s) could not be screened');
+    expect(stdout).toMatch(/Passed over .*1 broken or looping link.*1 not a regular file/);
     expect(stderr).toContain('E_MEDIA_TRUNCATED');
   });
 
@@ -106,7 +140,12 @@ describe('bad input in a scanned folder', () => {
     const ledger = path.join(dir, 'out', 'bad.ledger');
     const r = runCli(['scan', dir, '--ledger', ledger]);
     expect(r.stdout).toContain('(0 screened now, 1 unchanged and skipped)');
-    expect(JSON.parse(runCli(['report', ledger]).stdout)).toEqual(report);
+    const again = JSON.parse(runCli(['report', ledger]).stdout) as Report;
+    // The ledger made by the first scan lies in the scanned folder now: passed over as the tool's own.
+    const own = again.skipped.filter((x) => x.file.startsWith('out/'));
+    expect(own.map((x) => x.file)).toEqual(expect.arrayContaining(['out/bad.ledger', 'out/bad.ledger.previews']));
+    expect(new Set(own.map((x) => x.reason))).toEqual(new Set(['ledger-files'])); // with SQLite's -wal and -shm while open
+    expect({ ...again, skipped: again.skipped.filter((x) => !x.file.startsWith('out/')) }).toEqual(report);
   });
 
   it('records a file that vanishes mid-scan and goes on', async () => {

@@ -17,8 +17,17 @@ export class ApiFailure extends Error {
   }
 }
 
+/** The session's request key, handed out by the loopback server in a response header that only
+ *  this page can read, and sent back with every request that changes something (the header's
+ *  name is KEY_HEADER in src/api/loopback-server.ts). Electron's protocol hands none out and
+ *  needs none. */
+let requestKey: string | null = null;
+const KEY_HEADER = 'x-movesift-key';
+
 async function call<T>(url: string, init?: RequestInit): Promise<T> {
-  const r = await fetch(url, init);
+  if (init?.method === 'POST' && requestKey === null) await fetch('api/session').then((r) => (requestKey = r.headers.get(KEY_HEADER)));
+  const r = await fetch(url, init?.method === 'POST' && requestKey ? { ...init, headers: { ...(init.headers as Record<string, string>), [KEY_HEADER]: requestKey } } : init);
+  requestKey = r.headers.get(KEY_HEADER) ?? requestKey;
   const text = await r.text();
   const body = text ? JSON.parse(text) : null;
   if (!r.ok) throw new ApiFailure(r.status, body?.code ?? 'E_HTTP', body?.message ?? `${r.status} ${r.statusText}`);
