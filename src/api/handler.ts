@@ -6,7 +6,7 @@
  *
  *   GET  /api/session                     the open ledger (or none), the engine version, the scan state
  *   POST /api/session {ledger, create?}   open an existing ledger, or make a new one
- *   POST /api/scans {folders:[...], ledger?, flow?}   scan folders into the open (or given) ledger
+ *   POST /api/scans {folders:[...], ledger?, flow?, deploymentCut?}   scan folders into the open (or given) ledger
  *   POST /api/scans/stop                  stop the running scan after its current event
  *   GET  /api/scans/progress              the scan's state as server-sent events
  *   GET  /api/tasks/progress              the running apply, undo or cut as server-sent events
@@ -109,7 +109,7 @@ export function createHandler(o: HandlerOptions): Handler {
       }
       if (!open) throw new HttpError(409, ApiErrorCode.noLedger, 'no ledger is open: give one to scan into');
       for (const f of folders) if (!existsSync(f)) throw new HttpError(400, 'E_FOLDER_MISSING', `${f}: no such folder`);
-      return json(jobs.start({ ledger: open.file, folders, flow: body.flow === true, workers }), 202);
+      return json(jobs.start({ ledger: open.file, folders, flow: body.flow === true, deploymentCut: body.deploymentCut === true, workers }), 202);
     }
     if (what === 'scans' && sub === 'stop' && parts.length === 3) {
       only('POST');

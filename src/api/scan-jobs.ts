@@ -15,6 +15,8 @@ export interface ScanStart {
   ledger: string;
   folders: string[];
   flow?: boolean;
+  /** Let each deployment raise its likely-blank cut (scan.ts ScanOptions.deploymentCut). */
+  deploymentCut?: boolean;
   workers: number;
 }
 
@@ -63,7 +65,7 @@ export function createScanJobs(run: typeof scan = scan) {
       controller = new AbortController();
       state = { job: ++jobs, ledger: o.ledger, folders: o.folders, status: 'running', phase: null, done: 0, total: 0, skipped: 0, rate: null, etaS: null, file: null, errorCount: 0, errors: [], summary: null, failure: null };
       const s = state;
-      finished = run({ roots: o.folders, ledger: o.ledger, flow: o.flow, workers: o.workers, signal: controller.signal, onProgress })
+      finished = run({ roots: o.folders, ledger: o.ledger, flow: o.flow, deploymentCut: o.deploymentCut, workers: o.workers, signal: controller.signal, onProgress })
         .then((summary) => {
           Object.assign(s, { status: summary.stopped ? 'stopped' : 'done', summary, file: null });
         })

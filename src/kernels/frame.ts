@@ -67,10 +67,16 @@ export function checkSameShape(nameA: string, a: Frame | FloatImage, nameB: stri
 /** Whether this machine stores the lowest byte of a word first (word-at-a-time pixel loops need it). */
 export const LITTLE_ENDIAN = new Uint8Array(Uint32Array.of(1).buffer)[0] === 1;
 
+/** Sizes whose working state is kept at once: a deployment is one camera (one analysis size),
+ *  and a scan of several cameras moves from one to the next. */
+export const SIZES_KEPT = 4;
+
 /**
  * Memoises per-size working state (transform plans, windows, scratch arrays): a scan runs
  * thousands of frames of one size, and building these per call showed up as allocation and
- * garbage-collection time.
+ * garbage-collection time. The state belongs to the thread that made it (each worker thread
+ * loads its own copy of the kernels, so threads never share scratch), and only the SIZES_KEPT
+ * sizes used last are kept: a stray resized file does not hold its scratch for the whole scan.
  */
 export function perSize<T>(make: (width: number, height: number) => T): (width: number, height: number) => T {
   const cache = new Map<number, T>();
@@ -79,8 +85,9 @@ export function perSize<T>(make: (width: number, height: number) => T): (width: 
     let v = cache.get(key);
     if (v === undefined) {
       v = make(width, height);
-      cache.set(key, v);
-    }
+      if (cache.size >= SIZES_KEPT) cache.delete(cache.keys().next().value!);
+    } else cache.delete(key); // re-inserted below: the map's order is the order of last use
+    cache.set(key, v);
     return v;
   };
 }

@@ -5,24 +5,24 @@
  * this one stopped: what is committed is complete, what is not is redone.
  */
 import path from 'node:path';
-import { findMedia, type Discovery, type FoundFile, type SkipReasonName } from '../media/find-media.js';
+import { findMedia, type Discovery, type FoundFile } from '../media/find-media.js';
 import { openLedger } from '../ledger/open-ledger.js';
 import { createScanStore, type EventPlan, type MediaRow } from '../ledger/scan-store.js';
 import { MAX_EVENT_FRAMES, groupEvents, type Group } from './group-events.js';
 import { ENGINE_VERSION, hashOf, paramHash, type AnalysisSettings } from './engine-version.js';
-import { runEventTask, type EventTask, type TaskOutcome } from './analyse-task.js';
+import { createTaskWorkspace, runEventTask, type EventTask, type TaskOutcome } from './analyse-task.js';
 import { readDeploymentsTable, type DeploymentFacts } from './deployments-table.js';
 import { takeInventory } from './inventory.js';
 import { analysisSize } from '../kernels/downscale.js';
 import { createHash } from 'node:crypto';
-import type { ScanProgress } from './progress.js';
+import type { ScanProgress, ScanSummary } from './progress.js';
 import { createWorkerPool } from './worker-pool.js';
 import { safeOutcome } from './safe-outcome.js';
 import { deploymentStrip } from './deployment-strip.js';
 import { MIN_CONSENSUS_FRAMES } from '../kernels/data-strip.js';
 import { calibrationNote, deploymentPass } from './deployment-pass.js';
 import { isoPlusSeconds } from '../media/capture-time.js';
-import { acquireLedgerLock, lockFileOf, type LedgerLock, type LockHolder } from '../ledger/ledger-lock.js';
+import { acquireLedgerLock, lockFileOf, type LedgerLock } from '../ledger/ledger-lock.js';
 
 export interface ScanOptions {
   roots: string[];
@@ -43,22 +43,7 @@ export interface ScanOptions {
   onProgress?: (p: ScanProgress) => void;
 }
 
-export interface ScanSummary {
-  scanId: number;
-  stopped: boolean;
-  files: number;
-  events: number;
-  analysed: number;
-  skipped: number;
-  errors: number;
-  verdicts: Record<string, number>;
-  seconds: number;
-  /** A lock left by a scan, apply or undo that died, taken over (ledger-lock.ts). */
-  tookOverLock?: LockHolder;
-  /** Entries under the scanned folders that are neither media nor errors, by reason
-   *  (find-media.ts); the report lists each. */
-  passedOver: Partial<Record<SkipReasonName, number>>;
-}
+export type { ScanSummary };
 
 export const DEFAULTS = { analysisWidth: 384, videoFps: 4, eventGapS: 5 } as const;
 
@@ -99,7 +84,8 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
   const scanId = store.startScan(roots, { ...settings, eventGapS: gap, deploymentCut: !!o.deploymentCut }, ENGINE_VERSION);
   const workers = Math.max(1, Math.floor(o.workers ?? 1));
   const pool = !o.runner && workers > 1 ? createWorkerPool(workers) : undefined;
-  const runner = (t: EventTask): Promise<TaskOutcome> => (pool ? pool.run(t) : safeOutcome(t, o.runner ?? runEventTask));
+  const workspace = createTaskWorkspace(); // the in-process analyses' (a pool's threads have their own)
+  const runner = (t: EventTask): Promise<TaskOutcome> => (pool ? pool.run(t) : safeOutcome(t, o.runner ?? ((x) => runEventTask(x, workspace))));
   const cacheDir = cacheDirOf(o.ledger);
   const summary: ScanSummary = { scanId, stopped: false, files: 0, events: 0, analysed: 0, skipped: 0, errors: 0, verdicts: { 'likely-blank': 0, unsure: 0, motion: 0 }, seconds: 0, tookOverLock: lock.tookOver, passedOver: {} };
   for (const d of discovered) for (const x of d.skipped) summary.passedOver[x.reason] = (summary.passedOver[x.reason] ?? 0) + 1;

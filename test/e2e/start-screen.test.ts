@@ -29,6 +29,11 @@ it('scans a typed folder into a new ledger with live progress, then opens the gr
   await page.goto(review.url);
   await page.getByLabel('folders to scan, one per line').fill(media);
   await page.getByLabel('ledger to scan into').fill(ledger);
+  // The deployment's own cut costs animals: off unless ticked, and the box says what it costs.
+  const cut = page.getByTestId('deployment-cut');
+  expect(await cut.isChecked()).toBe(false);
+  expect(await page.locator('label.check-row').textContent()).toMatch(/some low-scoring animals/);
+  await cut.check();
   await page.getByRole('button', { name: 'Scan' }).click();
   const phases = new Set<string>();
   const end = Date.now() + 120_000;
@@ -44,6 +49,9 @@ it('scans a typed folder into a new ledger with live progress, then opens the gr
   expect([...phases].some((p) => /in progress/.test(p))).toBe(true); // progress was seen live, not only the end
   const db = new Database(ledger, { readonly: true });
   const events = (db.prepare('SELECT count(*) AS n FROM analyses').get() as { n: number }).n;
+  // The tick reached the scan: its settings record the option, and pass two ran with it on.
+  expect(JSON.parse((db.prepare('SELECT params FROM scans ORDER BY id DESC LIMIT 1').get() as { params: string }).params)).toMatchObject({ deploymentCut: true });
+  expect((db.prepare("SELECT count(*) AS n FROM deployment_calibrations WHERE status = 'off'").get() as { n: number }).n).toBe(0);
   db.close();
   expect(await page.locator('[data-testid=scan-summary]').textContent()).toContain(`${events} events`);
   await page.getByTestId('review-button').click();

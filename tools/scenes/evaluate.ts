@@ -3,9 +3,9 @@
  * truth: a track is the subject's when its blobs overlap the subject mask by a quarter of their
  * area in at least one frame. Shared by the weight fit and the behaviour tests.
  */
-import { analyseEvent, type EventAnalysis } from '../../src/kernels/analyse-event.js';
-import { detectDataStripInFrames, ignoreMask } from '../../src/kernels/data-strip.js';
-import { eventFeatureRows, scoreEvent, type MotionModel, type EventScore } from '../../src/kernels/score.js';
+import type { EventAnalysis } from '../../src/kernels/analyse-event.js';
+import { screenEvent } from '../../src/kernels/screen-event.js';
+import { scoreEvent, type MotionModel, type EventScore } from '../../src/kernels/score.js';
 import { ANIMAL_CATEGORIES, Category, LAND_FALSE, WATER_FALSE, type CategoryName } from './categories.js';
 import { renderScene, type Scene, type SceneRequest } from './render.js';
 
@@ -22,16 +22,14 @@ export interface LabelledEvent {
 }
 
 /**
- * Analyses a scene as a scan does (src/pipeline/analyse-task.ts): the event's frames with the
- * middle frames of neighbouring triggers of the same camera, from which the engine builds a
- * deployment background (the neighbours are not clean: see renderNeighbours). The model is
- * fitted and judged on exactly what the product will compute.
+ * Analyses a scene through the engine's entry a scan calls (kernels/screen-event.ts): the
+ * event's frames with the middle frames of neighbouring triggers of the same camera, from which
+ * the engine builds a deployment background (the neighbours are not clean: see
+ * renderNeighbours), and the data strip found as the scan finds it. The model is fitted and
+ * judged on exactly what the product will compute.
  */
 export function analyseScene(scene: Scene): LabelledEvent {
-  const strip = detectDataStripInFrames(scene.frames);
-  const mask = strip.top || strip.bottom ? ignoreMask(scene.width, scene.height, strip) : undefined;
-  const analysis = analyseEvent({ frames: scene.frames, neighbours: scene.neighbours, mask });
-  const rows = eventFeatureRows(analysis);
+  const { analysis, rows } = screenEvent({ frames: scene.frames, neighbours: scene.neighbours });
   const labels = analysis.tracks.map((t) =>
     t.points.some((p) => {
       const m = scene.subjectMasks[p.frame];

@@ -52,7 +52,7 @@ export function filterQuery(f: ViewFilter): URLSearchParams {
 export const api = {
   session: () => call<SessionInfo>('api/session'),
   openLedger: (ledger: string, create: boolean) => call<SessionInfo>('api/session', post({ ledger, create })),
-  startScan: (folders: string[], ledger?: string) => call<ScanJobState>('api/scans', post({ folders, ledger })),
+  startScan: (folders: string[], ledger?: string, deploymentCut = false) => call<ScanJobState>('api/scans', post({ folders, ledger, deploymentCut })),
   stopScan: () => call<ScanJobState>('api/scans/stop', post({})),
   page(f: ViewFilter, offset: number, limit: number, withTotal: boolean): Promise<EventPage> {
     const q = filterQuery(f);

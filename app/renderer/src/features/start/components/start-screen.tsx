@@ -76,6 +76,7 @@ export function StartScreen({ session, scan, who, onWho, onSession, onReview }: 
   const [ledger, setLedger] = useState(session.ledger ?? '');
   const [newLedger, setNewLedger] = useState('');
   const [folders, setFolders] = useState('');
+  const [deploymentCut, setDeploymentCut] = useState(false);
   const [error, setError] = useState<string | null>(null);
   const act = (f: () => Promise<unknown>) => () => {
     setError(null);
@@ -92,7 +93,7 @@ export function StartScreen({ session, scan, who, onWho, onSession, onReview }: 
     if (!list.length) throw new Error('give at least one folder to scan');
     const target = desktop && !session.ledger ? await desktop.chooseNewLedger() : newLedger.trim() || session.ledger;
     if (!target) throw new Error('give a ledger file to scan into');
-    await api.startScan(list, target);
+    await api.startScan(list, target, deploymentCut);
     onSession(await api.session());
   });
   return (
@@ -123,6 +124,13 @@ export function StartScreen({ session, scan, who, onWho, onSession, onReview }: 
               <input value={newLedger} onChange={(e) => setNewLedger(e.target.value)} placeholder={session.ledger ? `into ${session.ledger}` : '/path/to/new.ledger'} aria-label="ledger to scan into" />
             </>
           )}
+          <label className="check-row">
+            <input type="checkbox" checked={deploymentCut} onChange={(e) => setDeploymentCut(e.target.checked)} data-testid="deployment-cut" />
+            <span>
+              Let each deployment raise its own likely-blank cut. More false triggers are called likely blank, and some low-scoring animals with them: about one animal in 30 on
+              scenes it was not fitted on. Off unless you tick it; every call it makes is marked for a look.
+            </span>
+          </label>
           <div className="dialog-buttons">
             <button type="button" className="button-main" onClick={startScan} disabled={scan?.status === 'running'}>
               Scan{desktop ? '…' : ''}
