@@ -13,6 +13,8 @@ import { auditCommand } from './audit-command.js';
 import { exportCommand } from './export-command.js';
 import { calibrateCommand } from './calibrate-command.js';
 import { cutCommand } from './cut-command.js';
+import { shardCommand } from './shard-command.js';
+import { mergeCommand } from './merge-command.js';
 import { ENGINE_VERSION } from '../pipeline/engine-version.js';
 import pkg from '../../package.json' with { type: 'json' };
 
@@ -31,10 +33,12 @@ Commands:
   export <ledger> --format csv|camtrap-dp --out <path>   the result as CSV or a Camtrap DP package
   calibrate <ledger> --recall 0.99     the likely-blank threshold from people's labels
   cut <ledger> --out <folder>          each clip's activity windows as separate files, with a MaxN sheet
+  shard plan <folder>... --shards <n>  split a scan into whole-deployment shards for a cluster
+  merge <shard.ledger>... --ledger <f> join the shards' ledgers into one
 
 Run \`movesift <command> --help\` for a command's options; \`movesift --version\` for the version.`;
 
-const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand, review: reviewCommand, decide: decideCommand, apply: applyCommand, undo: undoCommand, audit: auditCommand, export: exportCommand, calibrate: calibrateCommand, cut: cutCommand };
+const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand, review: reviewCommand, decide: decideCommand, apply: applyCommand, undo: undoCommand, audit: auditCommand, export: exportCommand, calibrate: calibrateCommand, cut: cutCommand, shard: shardCommand, merge: mergeCommand };
 
 export async function main(argv: string[]): Promise<number> {
   const [cmd, ...rest] = argv;

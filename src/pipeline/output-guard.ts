@@ -9,6 +9,7 @@
  */
 import { closeSync, existsSync, openSync, readSync, realpathSync, renameSync, statSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
+import { mediaKindOf } from '../media/find-media.js';
 import { MovesiftError } from '../shared/errors.js';
 import type { Ledger } from '../ledger/open-ledger.js';
 import { isLedgerMedium, ledgerRoots, setAsidePaths } from '../ledger/export-rows.js';
@@ -74,6 +75,22 @@ export function checkOutput(file: string, o: OutputContext): void {
 /** Checks `file` (checkOutput), then writes `text` to a part file beside it and renames it into place. */
 export function writeOutput(file: string, text: string, o: OutputContext): void {
   checkOutput(file, o);
+  const part = `${file}.part`;
+  writeFileSync(part, text);
+  renameSync(part, file);
+}
+
+/** For a file made without a ledger (a shard plan): the same refusals that need no ledger. A
+ *  photo or clip by its name, a SQLite file and a folder are never replaced; another file only
+ *  with `force`. Written to a part file and renamed into place. */
+export function writePlainOutput(file: string, text: string, force: boolean): void {
+  const target = realTarget(file);
+  if (mediaKindOf(target)) throw new MovesiftError(OutputErrorCode.protectedFile, `${file}: is named like a photo or clip; it is never replaced. Choose another name.`);
+  if (existsSync(target)) {
+    if (statSync(target).isDirectory()) throw new MovesiftError(OutputErrorCode.exists, `${file}: is a folder; give a file name`);
+    if (isSqlite(target)) throw new MovesiftError(OutputErrorCode.protectedFile, `${file}: is a SQLite database (perhaps a ledger); it is never replaced. Choose another name.`);
+    if (!force) throw new MovesiftError(OutputErrorCode.exists, `${file}: already exists; give --force to replace it, or choose another name`);
+  }
   const part = `${file}.part`;
   writeFileSync(part, text);
   renameSync(part, file);

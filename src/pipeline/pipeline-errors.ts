@@ -14,6 +14,8 @@ export const PipelineErrorCode = {
   undoHashMismatch: 'E_UNDO_HASH_MISMATCH',
   undoMissing: 'E_UNDO_FILE_MISSING',
   unknownApply: 'E_UNKNOWN_APPLY',
+  invalidPlan: 'E_SHARD_PLAN',
+  shardMismatch: 'E_SHARD_MISMATCH',
 } as const;
 
 export type PipelineErrorCodeValue = (typeof PipelineErrorCode)[keyof typeof PipelineErrorCode];

@@ -11,6 +11,7 @@ import { createScanStore, type EventPlan, type MediaRow } from '../ledger/scan-s
 import { MAX_EVENT_FRAMES, groupEvents, type Group } from './group-events.js';
 import { ENGINE_VERSION, hashOf, paramHash, type AnalysisSettings } from './engine-version.js';
 import { createTaskWorkspace, runEventTask, type EventTask, type TaskOutcome } from './analyse-task.js';
+import { deploymentIdOf } from './shard-plan.js';
 import { readDeploymentsTable, type DeploymentFacts } from './deployments-table.js';
 import { takeInventory } from './inventory.js';
 import { analysisSize } from '../kernels/downscale.js';
@@ -35,6 +36,11 @@ export interface ScanOptions {
    *  Off by default: it trades low-scoring animals for false triggers (docs/held-out-validation.md). */
   deploymentCut?: boolean;
   deploymentsTable?: string;
+  /** Only these deployments (a shard of a plan, shard-plan.ts), by `${root}\0${id}`; entries
+   *  passed over in folders of no deployment go with the shard that says `unassigned`. */
+  only?: { deployments: ReadonlySet<string>; unassigned: boolean };
+  /** Which shard of which plan this scan is, recorded with it so that merge can check. */
+  shardOf?: { plan: string; index: number; shards: number };
   /** Runs analyses; defaults to in-process (workers 1) or a worker-thread pool. Tests pass their own. */
   runner?: (task: EventTask) => Promise<TaskOutcome>;
   /** Worker threads for analysis; 1 runs in the calling thread. */
@@ -70,6 +76,19 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
   emit({ type: 'phase', phase: 'discover' });
   const discovered: Discovery[] = [];
   for (const r of roots) discovered.push(await findMedia(r, ledgerFiles(o.ledger))); // a missing folder throws before the ledger is touched
+  if (o.only) {
+    // A shard scans whole deployments of the plan and nothing else (shard-plan.ts).
+    const only = o.only;
+    const mine = (root: string, folder: string): boolean => only.deployments.has(`${root}\0${deploymentIdOf(table, root, folder)}`);
+    const folders = discovered.map((d) => new Set(d.files.map((f) => f.folder)));
+    discovered.forEach((d, i) => {
+      d.files = d.files.filter((f) => mine(roots[i], f.folder));
+      d.skipped = d.skipped.filter((x) => {
+        const folder = x.rel.includes('/') ? x.rel.slice(0, x.rel.lastIndexOf('/')) : '';
+        return folders[i].has(folder) ? mine(roots[i], folder) : only.unassigned;
+      });
+    });
+  }
   const found = discovered.map((d) => d.files);
   const db = openLedger(o.ledger, { create: true });
   let lock: LedgerLock;
@@ -81,7 +100,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
   }
   const store = createScanStore(db);
   const hash = paramHash(settings);
-  const scanId = store.startScan(roots, { ...settings, eventGapS: gap, deploymentCut: !!o.deploymentCut }, ENGINE_VERSION);
+  const scanId = store.startScan(roots, { ...settings, eventGapS: gap, deploymentCut: !!o.deploymentCut, ...(o.shardOf ? { shard: o.shardOf } : {}) }, ENGINE_VERSION);
   const workers = Math.max(1, Math.floor(o.workers ?? 1));
   const pool = !o.runner && workers > 1 ? createWorkerPool(workers) : undefined;
   const workspace = createTaskWorkspace(); // the in-process analyses' (a pool's threads have their own)
@@ -100,7 +119,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
     for (let ri = 0; ri < roots.length; ri++) {
       const root = roots[ri];
       const rootId = store.ensureRoot(root);
-      const deploymentOf = (f: FoundFile): string => table.get(f.folder)?.deploymentID ?? (f.folder || path.basename(root));
+      const deploymentOf = (f: FoundFile): string => deploymentIdOf(table, root, f.folder);
       const folders = new Map<string, string>();
       for (const f of found[ri]) folders.set(deploymentOf(f), f.folder);
       store.upsertDeployments([...folders].map(([id, folder]) => {
