@@ -107,7 +107,6 @@ export async function scanCommand(argv: string[]): Promise<number> {
     console.log(SCAN_HELP);
     return ExitCode.done;
   }
-  if (!values.ledger) throw usageError('scan: --ledger <file> is required (where the results are kept). See `movesift scan --help`.');
   let roots = positionals;
   let options = scanOptionsOf(values);
   let shard: { plan: ShardPlan; index: number; scratch: string } | undefined;
@@ -123,6 +122,7 @@ export async function scanCommand(argv: string[]): Promise<number> {
     if (values.shard !== undefined || values.scratch !== undefined) throw usageError('scan: --shard and --scratch go with --plan. See `movesift scan --help`.');
     if (!roots.length) throw usageError('scan: give at least one folder to scan. See `movesift scan --help`.');
   }
+  if (!values.ledger) throw usageError('scan: --ledger <file> is required (where the results are kept). See `movesift scan --help`.');
   const controller = new AbortController();
   const onSignal = (): void => {
     if (controller.signal.aborted) process.exit(ExitCode.failure);
