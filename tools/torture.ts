@@ -188,15 +188,16 @@ async function killMatrix(work: string): Promise<Record<string, KillTally>> {
     removeLedger(ledger);
     cpSync(decided, ledger);
   };
-  /** Every original exactly once, whole: at home, or (when `away`) in the set-aside folder. */
-  const everyOnce = (aside: string, label: string): boolean => {
+  /** Every original exactly once, whole: at home, or in the set-aside folder. `midway`: right
+   *  after a kill, when a copy broken off may have left its part file (the next run removes it). */
+  const everyOnce = (aside: string, label: string, midway = false): boolean => {
     const home = hashes(card);
     const away = hashes(path.join(aside, path.basename(card)));
     for (const [rel, h] of originals) {
       const places = [home.get(rel), away.get(rel)].filter((x) => x !== undefined);
       if (!check(places.length === 1 && places[0] === h, `${label}: ${rel} is in ${places.length} place(s)${places.length === 1 ? ' with another SHA-256' : ''}`)) return false;
     }
-    const stray = [...home.keys(), ...away.keys()].filter((r) => !originals.has(r));
+    const stray = [...home.keys(), ...away.keys()].filter((r) => !originals.has(r) && !(midway && r.endsWith('.movesift-part')));
     return check(stray.length === 0, `${label}: files nobody put there: ${stray.slice(0, 3).join(', ')}`);
   };
   const allHome = (label: string): boolean => {
@@ -240,10 +241,10 @@ async function killMatrix(work: string): Promise<Record<string, KillTally>> {
       else tl.finishedFirst++;
       const label = `undo kill ${k} (${disk}) at ${at.toFixed(0)} ms`;
       const s0 = ledgerState(ledger);
-      let ok = check(s0.integrity === 'ok', `${label}: integrity ${s0.integrity} right after the kill`) && everyOnce(aside, `${label}, right after the kill`);
+      let ok = check(s0.integrity === 'ok', `${label}: integrity ${s0.integrity} right after the kill`) && everyOnce(aside, `${label}, right after the kill`, true);
       const again = run(['undo', ledger]);
       const s = ledgerState(ledger);
-      ok = ok && check(again.code === 0, `${label}: the next undo exited ${again.code}: ${again.stderr.slice(-300)}`) && check(s.integrity === 'ok' && s.pending === 0, `${label}: integrity ${s.integrity}, ${s.pending} moves half done`) && allHome(label);
+      ok = ok && check(again.code === 0, `${label}: the next undo exited ${again.code}: ${again.stderr.slice(-300)}`) && check(s.integrity === 'ok' && s.pending === 0, `${label}: integrity ${s.integrity}, ${s.pending} moves half done`) && allHome(label) && everyOnce(aside, `${label}, after the next undo`);
       if (ok) tl.recovered++;
     }
   }

@@ -15,6 +15,7 @@ import { calibrateCommand } from './calibrate-command.js';
 import { cutCommand } from './cut-command.js';
 import { shardCommand } from './shard-command.js';
 import { mergeCommand } from './merge-command.js';
+import { slurmCommand } from './slurm-command.js';
 import { ENGINE_VERSION } from '../pipeline/engine-version.js';
 import pkg from '../../package.json' with { type: 'json' };
 
@@ -35,10 +36,11 @@ Commands:
   cut <ledger> --out <folder>          each clip's activity windows as separate files, with a MaxN sheet
   shard plan <folder>... --shards <n>  split a scan into whole-deployment shards for a cluster
   merge <shard.ledger>... --ledger <f> join the shards' ledgers into one
+  slurm submit <folder>... --ledger <f> --shards <n>   the scan as a Slurm job array, then the merge
 
 Run \`movesift <command> --help\` for a command's options; \`movesift --version\` for the version.`;
 
-const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand, review: reviewCommand, decide: decideCommand, apply: applyCommand, undo: undoCommand, audit: auditCommand, export: exportCommand, calibrate: calibrateCommand, cut: cutCommand, shard: shardCommand, merge: mergeCommand };
+const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand, review: reviewCommand, decide: decideCommand, apply: applyCommand, undo: undoCommand, audit: auditCommand, export: exportCommand, calibrate: calibrateCommand, cut: cutCommand, shard: shardCommand, merge: mergeCommand, slurm: slurmCommand };
 
 export async function main(argv: string[]): Promise<number> {
   const [cmd, ...rest] = argv;
