@@ -8,9 +8,10 @@ export const MERGE_HELP = `Usage: movesift merge <shard.ledger>... --ledger <mer
 Joins the shard ledgers of a cluster scan (\`movesift shard plan\`, then \`movesift scan --plan\`
 per shard) into one ledger, as if one machine had scanned everything: review, audit and export
 use it as any other. Merging a shard again changes nothing; a shard scanned again replaces what
-it brought before; decisions made on a shard are kept, marked with the shard they came from.
-The merged ledger may already hold reviews. Shards of another plan or engine version, and
-shards with applies or audits, are refused. Shards the plan has and the ledger lacks are named.
+it brought before; decisions, applies (with their journal, so undo works) and audits made on a
+shard are kept, marked with the shard they came from. The merged ledger may already hold
+reviews. Shards of another plan or engine version, and a shard with a label calibration in
+force, are refused. Shards the plan has and the ledger lacks are named.
 
 Options:
   --ledger <file>    the merged ledger (created if missing)                       required

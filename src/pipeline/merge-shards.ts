@@ -9,8 +9,10 @@
  *   again (other content) replaces what it brought before. Decisions are append-only: those
  *   already taken in are not taken twice.
  * - Refused with a clear message: a ledger that is not a shard, shards of different plans or
- *   engine versions, a shard of another plan than the merged ledger's, a shard with applies or
- *   audits (those belong on the merged ledger, where the review happens).
+ *   engine versions, a shard of another plan than the merged ledger's, a shard with a label
+ *   calibration (a threshold fitted on one shard's labels would decide for every shard).
+ * - Applies (with their journal of moves) and audits made on a shard come with it, marked with
+ *   their origin, so `undo` and the audit report work on the merged ledger.
  * - The merged ledger is written under its lock (ledger-lock.ts), like a scan.
  */
 import { createHash } from 'node:crypto';
@@ -62,7 +64,11 @@ function contentOf(db: Database.Database): string {
 
 /** Removes from the merged ledger what an earlier merge of a shard brought (its deployments'
  *  media, events, analyses and errors), before the shard scanned again is taken in. */
-function forget(db: Ledger, deployments: string[]): void {
+function forget(db: Ledger, deployments: string[], origin: string): void {
+  // What the shard's own applies and audits brought, first: their moves name its media.
+  db.prepare('DELETE FROM moves WHERE apply_id IN (SELECT id FROM applies WHERE origin = ?)').run(origin);
+  db.prepare('DELETE FROM applies WHERE origin = ?').run(origin);
+  db.prepare('DELETE FROM audit_items WHERE audit_id IN (SELECT id FROM audits WHERE origin = ?)').run(origin);
   for (const d of deployments) {
     db.prepare('DELETE FROM events WHERE deployment_id = ?').run(d); // analyses, previews, windows, event_media cascade
     db.prepare('DELETE FROM scan_errors WHERE rel_path IN (SELECT rel_path FROM media WHERE deployment_id = ?)').run(d);
@@ -82,8 +88,8 @@ export async function mergeShards(shardFiles: readonly string[], into: string): 
     const db = openLedger(file, { readonly: true });
     try {
       const origin = originOf(db, f);
-      const acts = db.prepare<[], { a: number; b: number }>('SELECT (SELECT count(*) FROM applies) AS a, (SELECT count(*) FROM audits) AS b').get()!;
-      if (acts.a || acts.b) throw pipelineError(PipelineErrorCode.shardMismatch, `${f}: has ${acts.a} apply(ies) and ${acts.b} audit(s); apply and audit on the merged ledger, not on a shard`);
+      const labelled = db.prepare<[], { n: number }>('SELECT count(*) AS n FROM calibrations WHERE applied = 1').get()!.n;
+      if (labelled) throw pipelineError(PipelineErrorCode.shardMismatch, `${f}: has a label calibration in force; a threshold fitted on one shard's labels would decide for all of them. Calibrate on the merged ledger instead`);
       return { file, given: f, origin, content: contentOf(db) };
     } finally {
       db.close();
@@ -121,16 +127,17 @@ export async function mergeShards(shardFiles: readonly string[], into: string): 
       const previews: string[] = [];
       db.exec(`ATTACH DATABASE '${s.file.replaceAll("'", "''")}' AS s`);
       try {
+        const origin = `shard ${s.origin.index} of plan ${plan.plan}`;
         db.transaction(() => {
           if (prev) {
             const old = JSON.parse(prev.deployments) as string[];
             // Media an apply moved are in the journal undo needs: the shard's old rows stay
             // until those files are put back.
-            const moved = db.prepare<[string], { n: number }>(`SELECT count(*) AS n FROM moves mv JOIN media m ON m.id = mv.media_id WHERE m.deployment_id IN (SELECT value FROM json_each(?))`).get(JSON.stringify(old))!.n;
+            const moved = db.prepare<[string, string], { n: number }>(`SELECT count(*) AS n FROM moves mv JOIN media m ON m.id = mv.media_id JOIN applies a ON a.id = mv.apply_id
+              WHERE m.deployment_id IN (SELECT value FROM json_each(?)) AND a.origin IS NOT ?`).get(JSON.stringify(old), origin)!.n;
             if (moved) throw pipelineError(PipelineErrorCode.shardMismatch, `shard ${s.origin.index} was scanned again, but ${moved} of its files are in this ledger's apply journal; run \`movesift undo\` on ${into} first, then merge it again`);
-            forget(db, old);
+            forget(db, old, origin);
           }
-          const origin = `shard ${s.origin.index} of plan ${plan.plan}`;
           // Roots by path; every other integer key renumbered through a map of old to new.
           const rootMap = new Map<number, number>();
           for (const r of db.prepare<[], { id: number; path: string }>('SELECT id, path FROM s.roots').all()) {
@@ -174,6 +181,25 @@ export async function mergeShards(shardFiles: readonly string[], into: string): 
             if (taken.has(`${d.event_id}|${d.at}|${d.batch ?? ''}`)) continue;
             db.prepare('INSERT INTO decisions (event_id, decision, source, who, at, score, verdict, engine_version, batch, note, origin) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)').run(d.event_id, d.decision, d.source, d.who, d.at, d.score, d.verdict, d.engine_version, d.batch, d.note, origin);
             summary.decisions++;
+          }
+          // The shard's applies with their journal, and its audits with their answers.
+          for (const a of db.prepare<[], { id: number; started_at: string; finished_at: string | null; target: string; mode: string; status: string; who: string | null; note: string | null }>('SELECT * FROM s.applies ORDER BY id').all()) {
+            const id = Number(db.prepare('INSERT INTO applies (started_at, finished_at, target, mode, status, who, note, origin) VALUES (?, ?, ?, ?, ?, ?, ?, ?)').run(a.started_at, a.finished_at, a.target, a.mode, a.status, a.who, a.note, origin).lastInsertRowid);
+            for (const m of db.prepare<[number], { media_id: number; event_id: string; source: string; dest: string; size: number; sha256: string; state: string; method: string | null; error: string | null; updated_at: string }>('SELECT * FROM s.moves WHERE apply_id = ? ORDER BY id').all(a.id)) {
+              db.prepare('INSERT INTO moves (apply_id, media_id, event_id, source, dest, size, sha256, state, method, error, updated_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)').run(id, mediaMap.get(m.media_id)!, m.event_id, m.source, m.dest, m.size, m.sha256, m.state, m.method, m.error, m.updated_at);
+            }
+          }
+          const auditKey = (a: { created_at: string; seed: number }): string => `${a.created_at}|${a.seed}`;
+          const knownAudits = new Map(db.prepare<[string], { id: number; created_at: string; seed: number }>('SELECT id, created_at, seed FROM audits WHERE origin = ?').all(origin).map((a) => [auditKey(a), a.id]));
+          for (const a of db.prepare<[], { id: number; created_at: string; who: string | null; seed: number; population: number; sample_size: number; tolerance: number; alpha: number; strata: string }>('SELECT * FROM s.audits ORDER BY id').all()) {
+            // Answers are append-only: an audit merged before keeps its row, and only answers
+            // given since are added.
+            const id = knownAudits.get(auditKey(a)) ?? Number(db.prepare('INSERT INTO audits (created_at, who, seed, population, sample_size, tolerance, alpha, strata, origin) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)').run(a.created_at, a.who, a.seed, a.population, a.sample_size, a.tolerance, a.alpha, a.strata, origin).lastInsertRowid);
+            db.prepare('INSERT OR IGNORE INTO audit_items (audit_id, position, event_id, stratum) SELECT ?, position, event_id, stratum FROM s.audit_items WHERE audit_id = ?').run(id, a.id);
+            const have = new Set(db.prepare<[number], { k: string }>("SELECT event_id || '|' || at AS k FROM audit_answers WHERE audit_id = ?").all(id).map((r) => r.k));
+            for (const ans of db.prepare<[number], { event_id: string; animal: number; who: string | null; at: string }>('SELECT * FROM s.audit_answers WHERE audit_id = ? ORDER BY id').all(a.id)) {
+              if (!have.has(`${ans.event_id}|${ans.at}`)) db.prepare('INSERT INTO audit_answers (audit_id, event_id, animal, who, at) VALUES (?, ?, ?, ?, ?)').run(id, ans.event_id, ans.animal, ans.who, ans.at);
+            }
           }
           summary.events += (db.prepare<[], { n: number }>('SELECT count(*) AS n FROM s.events').get()!).n;
           db.prepare(`INSERT INTO merges (plan_id, shard_index, shards, source, content, deployments, engine_version, merged_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)

@@ -120,7 +120,7 @@ describe('merging shards', () => {
     expect(runCli(['merge', shard(2), '--ledger', merged]).stdout).toMatch(/already merged and unchanged/);
   });
 
-  it('is refused while another process holds the merged ledger, and refuses a shard with applies', () => {
+  it('is refused while another process holds the merged ledger, and refuses a shard with a label calibration', () => {
     const merged = path.join(dir, 'busy.ledger');
     expect(runCli(['merge', shard(0), '--ledger', merged]).code).toBe(0);
     const held = acquireLedgerLock(merged, 'scan');
@@ -128,12 +128,38 @@ describe('merging shards', () => {
     held.release();
     expect(r.code).toBe(2);
     expect(r.stderr).toMatch(/in use by scan/);
-    const withApply = path.join(dir, 'shards', 'applied.ledger');
-    cpSync(shard(1), withApply);
-    const db = new Database(withApply);
-    db.prepare("INSERT INTO applies (started_at, target, mode, status) VALUES ('2026-12-05T10:00:00Z', '/x', 'move', 'done')").run();
+    const calibrated = path.join(dir, 'shards', 'calibrated.ledger');
+    cpSync(shard(1), calibrated);
+    const db = new Database(calibrated);
+    db.prepare("INSERT INTO calibrations (at, target_recall, threshold, animals, recall_lower, applied, changed) VALUES ('2026-12-05T10:00:00Z', 0.99, 0.4, 300, 0.99, 1, 1)").run();
     db.close();
-    expect(runCli(['merge', withApply, '--ledger', path.join(dir, 'm4.ledger')]).stderr).toMatch(/apply and audit on the merged ledger/);
+    expect(runCli(['merge', calibrated, '--ledger', path.join(dir, 'm4.ledger')]).stderr).toMatch(/Calibrate on the merged ledger instead/);
     expect(readdirSync(path.join(dir, 'scratch'))).toEqual([]); // every shard published, nothing left on scratch
+  });
+
+  it('brings an apply made on a shard with its journal and an audit with its sample, so undo on the merged ledger puts the files back', () => {
+    const applied = path.join(dir, 'shards', 'applied.ledger');
+    cpSync(shard(0), applied);
+    const dep = plan.shards[0].deployments[0];
+    expect(runCli(['decide', applied, '--set-aside', '--deployment', dep.id]).code).toBe(0);
+    const aside = path.join(tempDir('movesift-shard-aside-'), 'aside');
+    const before = readdirSync(path.join(cards, dep.folders[0])).length;
+    const a = runCli(['apply', applied, '--to', aside]);
+    expect(a.code, a.stderr).toBe(0);
+    expect(readdirSync(path.join(cards, dep.folders[0])).length).toBeLessThan(before);
+    expect(runCli(['audit', applied, '--sample', '3']).code).toBe(0);
+    const merged = path.join(dir, 'with-apply.ledger');
+    expect(runCli(['merge', applied, shard(1), shard(2), '--ledger', merged]).code).toBe(0);
+    const db = new Database(merged, { readonly: true });
+    const applies = db.prepare<[], { origin: string; status: string }>('SELECT origin, status FROM applies').all();
+    const moved = (db.prepare("SELECT count(*) AS n FROM moves WHERE state = 'moved'").get() as { n: number }).n;
+    const audits = db.prepare<[], { origin: string; items: number }>('SELECT a.origin, (SELECT count(*) FROM audit_items i WHERE i.audit_id = a.id) AS items FROM audits a').all();
+    db.close();
+    expect(audits).toEqual([{ origin: `shard 0 of plan ${plan.id}`, items: 3 }]);
+    expect(applies).toEqual([{ origin: `shard 0 of plan ${plan.id}`, status: 'done' }]);
+    expect(moved).toBe(before - 0 - readdirSync(path.join(cards, dep.folders[0])).length);
+    const u = runCli(['undo', merged]);
+    expect(u.code, u.stderr).toBe(0);
+    expect(readdirSync(path.join(cards, dep.folders[0])).length).toBe(before);
   });
 });
