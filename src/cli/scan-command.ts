@@ -73,24 +73,30 @@ export function formatSummary(s: ScanSummary, health: readonly ReportDeployment[
   ].join('\n');
 }
 
-const SCAN_FLAGS = {
-  ledger: { type: 'string' },
+/** The screening options, as scan, shard plan and slurm submit take them (scanOptionsOf reads them). */
+export const SCREENING_FLAGS = {
   'analysis-width': { type: 'string' },
   'video-fps': { type: 'string' },
   'event-gap': { type: 'string' },
   flow: { type: 'boolean' },
   'deployment-cut': { type: 'boolean' },
-  workers: { type: 'string' },
   deployments: { type: 'string' },
+} as const;
+export type ScreeningFlags = { 'analysis-width'?: string; 'video-fps'?: string; 'event-gap'?: string; flow?: boolean; 'deployment-cut'?: boolean; deployments?: string };
+
+const SCAN_FLAGS = {
+  ...SCREENING_FLAGS,
+  ledger: { type: 'string' },
+  workers: { type: 'string' },
   'json-progress': { type: 'boolean' },
   plan: { type: 'string' },
   shard: { type: 'string' },
   scratch: { type: 'string' },
 } as const;
-type ScanFlags = { ledger?: string; 'analysis-width'?: string; 'video-fps'?: string; 'event-gap'?: string; flow?: boolean; 'deployment-cut'?: boolean; workers?: string; deployments?: string; 'json-progress'?: boolean; plan?: string; shard?: string; scratch?: string };
+type ScanFlags = ScreeningFlags & { ledger?: string; workers?: string; 'json-progress'?: boolean; plan?: string; shard?: string; scratch?: string };
 
 /** The screening options as flags give them (a plan's own are used instead under --plan). */
-export function scanOptionsOf(values: ScanFlags): ShardScanOptions {
+export function scanOptionsOf(values: ScreeningFlags): ShardScanOptions {
   return {
     analysisWidth: numberFlag('analysis-width', values['analysis-width'], 64, 4096, true),
     videoFps: numberFlag('video-fps', values['video-fps'], 0.1, 60),

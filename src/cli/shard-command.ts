@@ -1,7 +1,7 @@
 /** `movesift shard plan <folder>... --shards N --out plan.json [screening options]`. */
 import { parse, numberFlag } from './args.js';
 import { ExitCode, usageError } from './cli-errors.js';
-import { scanOptionsOf } from './scan-command.js';
+import { SCREENING_FLAGS, scanOptionsOf, type ScreeningFlags } from './scan-command.js';
 import { planShards } from '../pipeline/shard-plan.js';
 import { writePlainOutput } from '../pipeline/output-guard.js';
 
@@ -30,16 +30,11 @@ export async function shardCommand(argv: string[]): Promise<number> {
     return verb === undefined ? ExitCode.usage : ExitCode.done;
   }
   if (verb !== 'plan') throw usageError(`shard: unknown step ${JSON.stringify(verb)}; the step is \`plan\`. See \`movesift shard --help\`.`);
-  const { values, positionals } = parse<{ shards?: string; out?: string; force?: boolean; 'analysis-width'?: string; 'video-fps'?: string; 'event-gap'?: string; flow?: boolean; 'deployment-cut'?: boolean; deployments?: string }>(rest, {
+  const { values, positionals } = parse<ScreeningFlags & { shards?: string; out?: string; force?: boolean }>(rest, {
+    ...SCREENING_FLAGS,
     shards: { type: 'string' },
     out: { type: 'string' },
     force: { type: 'boolean' },
-    'analysis-width': { type: 'string' },
-    'video-fps': { type: 'string' },
-    'event-gap': { type: 'string' },
-    flow: { type: 'boolean' },
-    'deployment-cut': { type: 'boolean' },
-    deployments: { type: 'string' },
   }, 'shard plan');
   if (values.help) {
     console.log(SHARD_HELP);

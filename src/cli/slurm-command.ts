@@ -13,7 +13,7 @@ import { fileURLToPath } from 'node:url';
 import Database from 'better-sqlite3';
 import { parse, numberFlag } from './args.js';
 import { ExitCode, usageError } from './cli-errors.js';
-import { scanOptionsOf } from './scan-command.js';
+import { SCREENING_FLAGS, scanOptionsOf, type ScreeningFlags } from './scan-command.js';
 import { planShards, type ShardPlan } from '../pipeline/shard-plan.js';
 import { MovesiftError } from '../shared/errors.js';
 
@@ -108,7 +108,8 @@ export async function slurmCommand(argv: string[]): Promise<number> {
     return verb === undefined ? ExitCode.usage : ExitCode.done;
   }
   if (verb !== 'submit') throw usageError(`slurm: unknown step ${JSON.stringify(verb)}; the step is \`submit\`. See \`movesift slurm --help\`.`);
-  const { values, positionals } = parse<{ ledger?: string; shards?: string; partition?: string; 'sbatch-arg'?: string[]; work?: string; wait?: boolean; 'dry-run'?: boolean; 'analysis-width'?: string; 'video-fps'?: string; 'event-gap'?: string; flow?: boolean; 'deployment-cut'?: boolean; deployments?: string }>(rest, {
+  const { values, positionals } = parse<ScreeningFlags & { ledger?: string; shards?: string; partition?: string; 'sbatch-arg'?: string[]; work?: string; wait?: boolean; 'dry-run'?: boolean }>(rest, {
+    ...SCREENING_FLAGS,
     ledger: { type: 'string' },
     shards: { type: 'string' },
     partition: { type: 'string' },
@@ -116,12 +117,6 @@ export async function slurmCommand(argv: string[]): Promise<number> {
     work: { type: 'string' },
     wait: { type: 'boolean' },
     'dry-run': { type: 'boolean' },
-    'analysis-width': { type: 'string' },
-    'video-fps': { type: 'string' },
-    'event-gap': { type: 'string' },
-    flow: { type: 'boolean' },
-    'deployment-cut': { type: 'boolean' },
-    deployments: { type: 'string' },
   }, 'slurm submit');
   if (values.help) {
     console.log(SLURM_HELP);

@@ -3,6 +3,7 @@
  * root) to deployment facts, with Camtrap DP 1.0.2 column names where the standard has them:
  * folder, deploymentID, locationName, latitude, longitude, cameraID, cameraModel.
  */
+import path from 'node:path';
 import { readFileSync } from 'node:fs';
 import { PipelineErrorCode, pipelineError } from './pipeline-errors.js';
 
@@ -82,4 +83,11 @@ export function readDeploymentsTable(file: string): Map<string, DeploymentFacts>
     out.set(folder, { folder, deploymentID: id, locationName: get('locationName'), latitude: num('latitude', -90, 90), longitude: num('longitude', -180, 180), cameraID: get('cameraID'), cameraModel: get('cameraModel') });
   });
   return out;
+}
+
+/** The deployment a file belongs to, as the scan names it: the deployments table's id for its
+ *  folder, else the folder's path below the root, else (files in the root itself) the root's
+ *  name. scan.ts and shard-plan.ts both use it. */
+export function deploymentIdOf(table: ReadonlyMap<string, DeploymentFacts>, root: string, folder: string): string {
+  return table.get(folder)?.deploymentID ?? (folder || path.basename(root));
 }

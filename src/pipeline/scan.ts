@@ -11,8 +11,7 @@ import { createScanStore, type EventPlan, type MediaRow } from '../ledger/scan-s
 import { MAX_EVENT_FRAMES, groupEvents, type Group } from './group-events.js';
 import { ENGINE_VERSION, hashOf, paramHash, type AnalysisSettings } from './engine-version.js';
 import { createTaskWorkspace, runEventTask, type EventTask, type TaskOutcome } from './analyse-task.js';
-import { deploymentIdOf } from './shard-plan.js';
-import { readDeploymentsTable, type DeploymentFacts } from './deployments-table.js';
+import { deploymentIdOf, readDeploymentsTable, type DeploymentFacts } from './deployments-table.js';
 import { takeInventory } from './inventory.js';
 import { analysisSize } from '../kernels/downscale.js';
 import { createHash } from 'node:crypto';

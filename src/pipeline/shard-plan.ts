@@ -16,21 +16,16 @@ import path from 'node:path';
 import { findMedia, type FoundFile } from '../media/find-media.js';
 import { probeVideo } from '../media/probe-video.js';
 import { ENGINE_VERSION } from './engine-version.js';
-import { readDeploymentsTable, type DeploymentFacts } from './deployments-table.js';
+import { deploymentIdOf, readDeploymentsTable, type DeploymentFacts } from './deployments-table.js';
+import type { ScanOptions } from './scan.js';
 import { pipelineError, PipelineErrorCode } from './pipeline-errors.js';
 
 /** Seconds of clip that cost about one image's screening: a 5-minute 1280x720 clip takes 23 s
  *  and an image 1/13.5 s (README, `npm run bench:scan`), so one clip second is about 1 image. */
 export const CLIP_SECOND_IN_IMAGES = 1;
 
-export interface ShardScanOptions {
-  analysisWidth?: number;
-  videoFps?: number;
-  eventGapS?: number;
-  flow?: boolean;
-  deploymentCut?: boolean;
-  deploymentsTable?: string;
-}
+/** The screening options a plan fixes for every shard (as `movesift scan` takes them). */
+export type ShardScanOptions = Pick<ScanOptions, 'analysisWidth' | 'videoFps' | 'eventGapS' | 'flow' | 'deploymentCut' | 'deploymentsTable'>;
 
 export interface PlannedDeployment {
   root: string;
@@ -52,13 +47,6 @@ export interface ShardPlan {
   roots: string[];
   options: ShardScanOptions;
   shards: Array<{ index: number; work: number; deployments: PlannedDeployment[] }>;
-}
-
-/** The deployment a file belongs to, as the scan names it: the deployments table's id for its
- *  folder, else the folder's path below the root, else (files in the root itself) the root's
- *  name. scan.ts uses this same function. */
-export function deploymentIdOf(table: ReadonlyMap<string, DeploymentFacts>, root: string, folder: string): string {
-  return table.get(folder)?.deploymentID ?? (folder || path.basename(root));
 }
 
 export async function planShards(roots: readonly string[], shardCount: number, options: ShardScanOptions = {}): Promise<ShardPlan> {
