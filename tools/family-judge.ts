@@ -13,6 +13,9 @@ export interface FamilyResult {
   deployments: number;
   animals: number;
   animalsKept: number;
+  /** Animals that passed during one of the place's false triggers (families.ts distractor). */
+  weatherAnimals: number;
+  weatherAnimalsKept: number;
   falseTriggers: number;
   falseBlank: number;
   falseUnsure: number;
@@ -24,7 +27,7 @@ export interface FamilyResult {
   /** Mean over deployments with both kinds of the within-deployment AUC. */
   meanAuc: number;
   /** Animals called likely-blank: deployment, files, category, score. */
-  lost: Array<{ deployment: string; first: string; category: string; score: number; rule: string }>;
+  lost: Array<{ deployment: string; first: string; category: string; distractor?: string; score: number; rule: string }>;
   /** Events of the report with no trigger in the truth (grouping differs from the shooting). */
   unmatched: number;
 }
@@ -40,7 +43,7 @@ export function aucOf(pos: readonly number[], neg: readonly number[]): number {
 export function judgeFamilies(reports: ReadonlyArray<{ family: FamilyName; report: Report }>, truth: readonly TriggerTruth[]): FamilyResult[] {
   const byFirst = new Map(truth.map((t) => [t.files[0], t]));
   return reports.map(({ family, report }) => {
-    const r: FamilyResult = { family, deployments: 0, animals: 0, animalsKept: 0, falseTriggers: 0, falseBlank: 0, falseUnsure: 0, falseBlankByDeployment: 0, calibration: {}, meanAuc: NaN, lost: [], unmatched: 0 };
+    const r: FamilyResult = { family, deployments: 0, animals: 0, animalsKept: 0, weatherAnimals: 0, weatherAnimalsKept: 0, falseTriggers: 0, falseBlank: 0, falseUnsure: 0, falseBlankByDeployment: 0, calibration: {}, meanAuc: NaN, lost: [], unmatched: 0 };
     const perDeployment = new Map<string, { pos: number[]; neg: number[] }>();
     for (const e of report.events) {
       // A scan reports files relative to the folder it scanned (the family's folder), the truth
@@ -56,7 +59,11 @@ export function judgeFamilies(reports: ReadonlyArray<{ family: FamilyName; repor
         r.animals++;
         d.pos.push(e.score);
         if (e.verdict !== 'likely-blank') r.animalsKept++;
-        else r.lost.push({ deployment: t.deployment, first: e.files[0], category: t.category, score: e.score, rule: e.rule });
+        else r.lost.push({ deployment: t.deployment, first: e.files[0], category: t.category, distractor: t.distractor, score: e.score, rule: e.rule });
+        if (t.distractor) {
+          r.weatherAnimals++;
+          if (e.verdict !== 'likely-blank') r.weatherAnimalsKept++;
+        }
       } else {
         r.falseTriggers++;
         d.neg.push(e.score);
@@ -83,6 +90,7 @@ export function printFamilyTable(results: readonly FamilyResult[], facts: Record
       'mostly false': facts[r.family].mostlyFalse ? 'yes' : 'no',
       deployments: r.deployments,
       'animals kept': pct(r.animalsKept, r.animals),
+      'of them in weather': pct(r.weatherAnimalsKept, r.weatherAnimals),
       'false triggers likely-blank': pct(r.falseBlank, r.falseTriggers),
       'false triggers unsure': r.falseUnsure,
       'of the blank, by the deployment': r.falseBlankByDeployment,
@@ -90,6 +98,6 @@ export function printFamilyTable(results: readonly FamilyResult[], facts: Record
       'AUC within deployment': r.meanAuc.toFixed(3),
     })),
   );
-  for (const r of results) for (const l of r.lost) console.log(`lost: ${r.family} ${l.first} (${l.category}) score ${l.score.toFixed(4)}, by the ${l.rule}'s rule`);
+  for (const r of results) for (const l of r.lost) console.log(`lost: ${r.family} ${l.first} (${l.category}${l.distractor ? ` in ${l.distractor}` : ''}) score ${l.score.toFixed(4)}, by the ${l.rule}'s rule`);
   for (const r of results) if (r.unmatched) console.log(`${r.family}: ${r.unmatched} events not matched to a trigger (grouping split or merged triggers)`);
 }

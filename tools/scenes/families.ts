@@ -24,6 +24,9 @@ export interface TriggerDraw {
   intervalS: number;
   /** Minutes since the deployment's previous trigger. */
   gapMin: number;
+  /** For an animal: the place's own false trigger at full strength around it (wind, a cloud
+   *  shadow, rain, an insect on the lens), when the weather was doing it as the animal passed. */
+  distractor?: CategoryName;
 }
 
 export interface DeploymentDraw {
@@ -66,6 +69,7 @@ export const FAMILY_FACTS: Record<FamilyName, FamilyFacts> = {
 const LAND_ANIMALS: readonly CategoryName[] = [Category.animalCrossing, Category.animalLingering, Category.animalPartial, Category.animalSmall];
 /** False triggers a place can be prone to (the lamp change happens only at night). */
 const NUISANCES = LAND_FALSE.filter((c) => c !== Category.irLamp);
+const ANIMAL_SET: ReadonlySet<CategoryName> = new Set(LAND_ANIMALS);
 
 function drawTriggers(rng: Rng, seedBase: number, count: number, animalShare: number, burst: () => { frames: number; intervalS: number }): TriggerDraw[] {
   // A place is prone to two or three kinds of false trigger, and every kind can still happen.
@@ -82,7 +86,13 @@ function drawTriggers(rng: Rng, seedBase: number, count: number, animalShare: nu
       if (light === 'ir' && category === Category.cloudShadow) category = Category.empty; // no sun at night
     }
     const b = burst();
-    out.push({ seed: seedBase + i, category, light, ...b, gapMin: Math.round(rng.range(3, 90)) });
+    // Animals do not wait for calm weather: one in three passes during one of the place's own
+    // false triggers (our choice of share). Drawn from a generator of its own, so that adding it
+    // left every other draw of every deployment as it was.
+    const weather = makeRng(seedBase + i + 7_919);
+    const withWeather = category !== Category.animalNight && ANIMAL_SET.has(category) && weather.chance(1 / 3);
+    const distractor = withWeather ? weather.pick(prone.filter((c) => c !== Category.empty)) : undefined;
+    out.push({ seed: seedBase + i, category, light, ...b, gapMin: Math.round(rng.range(3, 90)), ...(distractor ? { distractor } : {}) });
   }
   return out;
 }

@@ -17,6 +17,8 @@ export interface TriggerTruth {
   family: string;
   files: string[];
   category: CategoryName;
+  /** The false trigger an animal passed in (families.ts TriggerDraw.distractor). */
+  distractor?: CategoryName;
   animal: boolean;
 }
 
@@ -41,7 +43,7 @@ export async function writeDeployment(d: DeploymentDraw, parent: string, startMs
     t += tr.gapMin * 60_000;
     const scene = renderScene({
       seed: tr.seed, category: tr.category, frames: tr.frames, intervalS: tr.intervalS, width: d.width, height: d.height,
-      world: d.world, light: tr.light, strip: d.strip ?? undefined, style: d.style, neighbours: false,
+      world: d.world, light: tr.light, strip: d.strip ?? undefined, style: d.style, neighbours: false, distractor: tr.distractor,
     });
     const files: string[] = [];
     for (let k = 0; k < scene.frames.length; k++) {
@@ -49,7 +51,7 @@ export async function writeDeployment(d: DeploymentDraw, parent: string, startMs
       await writeJpeg(path.join(dir, name), scene.frames[k], t + Math.round(scene.times[k] * 1000 - scene.times[0] * 1000), d.jpegQuality, `${d.family} (invented)`);
       files.push(`${d.id}/${name}`);
     }
-    truth.push({ deployment: d.id, family: d.family, files, category: tr.category, animal: scene.animal });
+    truth.push({ deployment: d.id, family: d.family, files, category: tr.category, ...(tr.distractor ? { distractor: tr.distractor } : {}), animal: scene.animal });
   }
   return truth;
 }
