@@ -45,8 +45,12 @@ const { values: opt } = parseArgs({
     'load-seconds': { type: 'string', default: '10' },
     clients: { type: 'string', default: '20' },
     json: { type: 'boolean', default: false },
+    small: { type: 'boolean', default: false },
   },
 });
+/** --small (the test suite's slice): the day camera and the reef clip for the scan, two cameras
+ *  for apply and undo, so the fixed cost of the baselines stays small. */
+const SMALL = opt.small;
 const KILLS = Number(opt.kills), FUZZ = Number(opt.fuzz), SEED = Number(opt.seed), LOAD_S = Number(opt['load-seconds']), CLIENTS = Number(opt.clients);
 const rnd = mulberry32(SEED);
 const failures: string[] = [];
@@ -146,8 +150,11 @@ async function killMatrix(work: string): Promise<Record<string, KillTally>> {
   // Scan: the whole sample (bursts and a clip), killed and resumed; the report must equal one
   // uninterrupted scan's.
   const scanCard = path.join(work, 'scan-card');
-  cpSync(SAMPLE, scanCard, { recursive: true, preserveTimestamps: true });
-  rmSync(path.join(scanCard, 'ground-truth.json'));
+  if (SMALL) for (const d of ['ridge-trail', 'reef-station']) cpSync(path.join(SAMPLE, d), path.join(scanCard, d), { recursive: true, preserveTimestamps: true });
+  else {
+    cpSync(SAMPLE, scanCard, { recursive: true, preserveTimestamps: true });
+    rmSync(path.join(scanCard, 'ground-truth.json'));
+  }
   const baseLedger = path.join(work, 'scan-base.ledger');
   const scanMs = timed(['scan', scanCard, '--ledger', baseLedger, '--workers', '2']);
   const baseReport = run(['report', baseLedger]).stdout;
@@ -170,10 +177,11 @@ async function killMatrix(work: string): Promise<Record<string, KillTally>> {
     if (ok) tl.recovered++;
   }
 
-  // Apply and undo: every file of a 192-file card set aside, moved into a folder on the same
+  // Apply and undo: every file of a 192-file card (64 with --small) set aside, moved into a folder on the same
   // disk (renames) or another (verified copies), killed, run again, undone.
   const pristine = path.join(work, 'pristine');
-  for (let d = 0; d < 6; d++) cpSync(path.join(SAMPLE, d < 4 ? 'ridge-trail' : 'creek-bend'), path.join(pristine, `cam${d}`), { recursive: true, preserveTimestamps: true });
+  const cameras = SMALL ? 2 : 6;
+  for (let d = 0; d < cameras; d++) cpSync(path.join(SAMPLE, d < cameras - 2 || d === 0 ? 'ridge-trail' : 'creek-bend'), path.join(pristine, `cam${d}`), { recursive: true, preserveTimestamps: true });
   const card = path.join(work, 'card');
   const ledger = path.join(work, 'apply.ledger');
   const decided = path.join(work, 'apply-decided.ledger');
@@ -332,7 +340,7 @@ async function fuzz(work: string): Promise<{ entries: number; kinds: Record<stri
 async function concurrency(work: string): Promise<Record<string, string>> {
   const out: Record<string, string> = {};
   const card = path.join(work, 'conc-card');
-  for (let d = 0; d < 6; d++) cpSync(path.join(SAMPLE, 'ridge-trail'), path.join(card, `cam${d}`), { recursive: true, preserveTimestamps: true });
+  for (let d = 0; d < (SMALL ? 3 : 6); d++) cpSync(path.join(SAMPLE, 'ridge-trail'), path.join(card, `cam${d}`), { recursive: true, preserveTimestamps: true });
   const originals = hashes(card);
   const ledger = path.join(work, 'conc.ledger');
   // Two scans at once: the second is refused while the first runs, and the first is unharmed.

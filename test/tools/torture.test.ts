@@ -10,7 +10,7 @@ import { ROOT } from '../helpers/cli.js';
 
 describe('the torture run, in small', () => {
   it('recovers every kill point, accounts for every fuzzed entry, refuses the second writer, serves the load without error', () => {
-    const r = spawnSync(process.execPath, [path.join(ROOT, 'node_modules/tsx/dist/cli.mjs'), 'tools/torture.ts', '--kills', '5', '--fuzz', '40', '--load-seconds', '1', '--clients', '4', '--seed', '7', '--json'], { cwd: ROOT, encoding: 'utf8', maxBuffer: 64 << 20 });
+    const r = spawnSync(process.execPath, [path.join(ROOT, 'node_modules/tsx/dist/cli.mjs'), 'tools/torture.ts', '--kills', '5', '--fuzz', '40', '--load-seconds', '1', '--clients', '4', '--seed', '7', '--small', '--json'], { cwd: ROOT, encoding: 'utf8', maxBuffer: 64 << 20 });
     expect(r.status, r.stderr.slice(-2000)).toBe(0);
     const out = JSON.parse(r.stdout.trim().split('\n').pop()!) as {
       kills: Record<string, { points: number; recovered: number }>;
