@@ -197,13 +197,14 @@ async function killMatrix(work: string): Promise<Record<string, KillTally>> {
     cpSync(decided, ledger);
   };
   /** Every original exactly once, whole: at home, or in the set-aside folder. `midway`: right
-   *  after a kill, when a copy broken off may have left its part file (the next run removes it). */
+   *  after a kill, when a copy across disks may be whole in both places (copied and renamed,
+   *  not yet removed at its old place) or have left its part file; the next run settles both. */
   const everyOnce = (aside: string, label: string, midway = false): boolean => {
     const home = hashes(card);
     const away = hashes(path.join(aside, path.basename(card)));
     for (const [rel, h] of originals) {
       const places = [home.get(rel), away.get(rel)].filter((x) => x !== undefined);
-      if (!check(places.length === 1 && places[0] === h, `${label}: ${rel} is in ${places.length} place(s)${places.length === 1 ? ' with another SHA-256' : ''}`)) return false;
+      if (!check((places.length === 1 || (midway && places.length === 2)) && places.every((p) => p === h), `${label}: ${rel} is in ${places.length} place(s)${places.length === 1 ? ' with another SHA-256' : ''}`)) return false;
     }
     const stray = [...home.keys(), ...away.keys()].filter((r) => !originals.has(r) && !(midway && r.endsWith('.movesift-part')));
     return check(stray.length === 0, `${label}: files nobody put there: ${stray.slice(0, 3).join(', ')}`);
