@@ -10,10 +10,13 @@
  * of individuals of a species seen in one frame, the standard count of baited video surveys).
  */
 import { spawn } from 'node:child_process';
-import { promises as fs } from 'node:fs';
+import { existsSync, promises as fs } from 'node:fs';
 import path from 'node:path';
 import { resolveBinaries } from '../media/ffmpeg-binaries.js';
 import { csvCell } from './report.js';
+import { renameNoClobber } from './safe-move.js';
+import { OutputErrorCode } from './output-guard.js';
+import { MovesiftError } from '../shared/errors.js';
 
 export interface ClipWindows {
   eventId: string;
@@ -62,8 +65,19 @@ function run(bin: string, args: string[]): Promise<void> {
   });
 }
 
+/** Writes a file that must not exist yet: to a part name, then linked into place. */
+async function writeNew(file: string, text: string): Promise<void> {
+  const part = `${file}.${process.pid}.part`;
+  await fs.writeFile(part, text);
+  await renameNoClobber(part, file);
+}
+
 export async function cutWindows(clips: ClipWindows[], out: string, exact: boolean, onFile?: (f: CutFile) => void): Promise<CutFile[]> {
   const { ffmpeg, ffprobe } = resolveBinaries();
+  // A folder holding an earlier cut is refused: its MaxN sheet may carry a volunteer's counts.
+  for (const f of ['maxn-sheet.csv', 'windows-index.csv']) {
+    if (existsSync(path.join(out, f))) throw new MovesiftError(OutputErrorCode.exists, `${out}: holds an earlier cut (${f}; its MaxN sheet may carry your counts), and nothing there is replaced. Choose a new folder`);
+  }
   await fs.mkdir(out, { recursive: true });
   const files: CutFile[] = [];
   for (const c of clips) {
@@ -78,7 +92,7 @@ export async function cutWindows(clips: ClipWindows[], out: string, exact: boole
         ? ['-v', 'error', '-y', '-i', c.source, '-ss', w.start_s.toFixed(3), '-to', w.end_s.toFixed(3), '-c:v', 'libx264', '-crf', '18', '-preset', 'medium', '-pix_fmt', 'yuv420p', '-c:a', 'aac', '-movflags', '+faststart', part]
         : ['-v', 'error', '-y', '-ss', w.start_s.toFixed(3), '-i', c.source, '-t', (w.end_s - w.start_s).toFixed(3), '-c', 'copy', '-avoid_negative_ts', 'make_zero', part];
       await run(ffmpeg, args);
-      await fs.rename(part, file);
+      await renameNoClobber(part, file);
       // The copy starts on the last keyframe at or before the window (1 ms for the rounding of -ss).
       const fileStart = exact ? w.start_s : keys.filter((k) => k <= w.start_s + 1e-3).pop() ?? 0;
       const f = { eventId: c.eventId, source: c.display, window: i + 1, start_s: w.start_s, end_s: w.end_s, score: w.score, file: name, file_start_s: Math.round(fileStart * 1000) / 1000 };
@@ -87,9 +101,9 @@ export async function cutWindows(clips: ClipWindows[], out: string, exact: boole
     }
   }
   const index = ['source_clip,event,window,start_s,end_s,score,file,file_start_s,mode', ...files.map((f) => [f.source, f.eventId, f.window, f.start_s, f.end_s, f.score, f.file, f.file_start_s, exact ? 'exact' : 'keyframe'].map(csvCell).join(','))];
-  await fs.writeFile(path.join(out, 'windows-index.csv'), index.join('\n') + '\n');
+  await writeNew(path.join(out, 'windows-index.csv'), index.join('\n') + '\n');
   // time_of_max_n is a time in the source clip: a time read in the cut file plus file_start_s.
   const maxn = ['source_clip,window,start,end,start_s,end_s,file,file_start_s,species,max_n,time_of_max_n,observer,notes', ...files.map((f) => [f.source, f.window, stamp(f.start_s), stamp(f.end_s), f.start_s, f.end_s, f.file, f.file_start_s, '', '', '', '', ''].map(csvCell).join(','))];
-  await fs.writeFile(path.join(out, 'maxn-sheet.csv'), maxn.join('\n') + '\n');
+  await writeNew(path.join(out, 'maxn-sheet.csv'), maxn.join('\n') + '\n');
   return files;
 }

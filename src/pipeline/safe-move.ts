@@ -41,7 +41,7 @@ async function fsyncPath(p: string): Promise<void> {
 }
 
 /** Gives `from` the name `to`, refusing (E_APPLY_NAME_CLASH) when `to` exists. Same file system only. */
-async function renameNoClobber(from: string, to: string): Promise<void> {
+export async function renameNoClobber(from: string, to: string): Promise<void> {
   try {
     await fs.link(from, to);
     await fs.unlink(from);

@@ -6,7 +6,7 @@
  * shorter than their window), with an index and a MaxN sheet.
  */
 import { spawnSync } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { cpSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import path from 'node:path';
 import Database from 'better-sqlite3';
@@ -147,5 +147,40 @@ describe('movesift cut', () => {
         expect(Number(col(row, 'file_start_s'))).toBeCloseTo(key, 3);
       }
     });
+  }, 120_000);
+});
+
+describe('what cut and apply write never replaces a file', () => {
+  it('cut refuses a folder holding an earlier cut, leaving its filled-in MaxN sheet as it was', () => {
+    const dir = tempDir('movesift-recut-');
+    const ledger = path.join(dir, 'r.ledger');
+    expect(runCli(['scan', path.join(ROOT, 'sample-media/reef-station'), '--ledger', ledger]).code).toBe(0);
+    const out = path.join(dir, 'windows');
+    expect(runCli(['cut', ledger, '--out', out]).code).toBe(0);
+    const sheet = path.join(out, 'maxn-sheet.csv');
+    const filled = readFileSync(sheet, 'utf8').replace(/,,,,,\n/, ',grouper,3,12.5,reef volunteer,\n');
+    writeFileSync(sheet, filled);
+    const again = runCli(['cut', ledger, '--out', out]);
+    expect(again.code).toBe(2);
+    expect(again.stderr).toMatch(/holds an earlier cut .*Choose a new folder/);
+    expect(readFileSync(sheet, 'utf8')).toBe(filled);
+  }, 120_000);
+
+  it('an apply of another ledger into the same folder keeps the first manifest and takes the next free name', () => {
+    const dir = tempDir('movesift-manifests-');
+    const aside = path.join(dir, 'aside');
+    const manifests: string[] = [];
+    for (const cam of ['ridge-trail', 'creek-bend']) {
+      const ledger = path.join(dir, `${cam}.ledger`);
+      cpSync(path.join(ROOT, 'sample-media', cam), path.join(dir, 'cards', cam), { recursive: true });
+      expect(runCli(['scan', path.join(dir, 'cards', cam), '--ledger', ledger]).code).toBe(0);
+      expect(runCli(['decide', ledger, '--set-aside', '--verdict', 'likely-blank']).code).toBe(0);
+      const r = runCli(['apply', ledger, '--to', aside]);
+      expect(r.code, r.stderr).toBe(0);
+    }
+    for (const f of readdirSync(aside).filter((f) => f.startsWith('movesift-manifest-')).sort()) manifests.push(readFileSync(path.join(aside, f), 'utf8'));
+    expect(readdirSync(aside).filter((f) => f.startsWith('movesift-manifest-')).sort()).toEqual(['movesift-manifest-1-2.csv', 'movesift-manifest-1.csv']);
+    expect(manifests[1]).toContain('ridge-trail'); // the first apply's manifest, untouched
+    expect(manifests[0]).toContain('creek-bend');
   }, 120_000);
 });
