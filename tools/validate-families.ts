@@ -34,7 +34,10 @@ const families = (typeof values.families === 'string' ? values.families.split(',
 /** Deployment seeds: their trigger seeds (seed * 1000 + i) lie far from the fit's (tools/scenes/seeds.ts). */
 const FIRST_SEED = Number(values['first-seed'] ?? 3_000);
 if (!Number.isInteger(FIRST_SEED) || FIRST_SEED < 3_000) throw new Error(`--first-seed must be an integer of at least 3000 (below it lie the fitting seeds), got ${values['first-seed']}`);
-const root = typeof values.keep === 'string' ? path.resolve(values.keep) : mkdtempSync(path.join(os.tmpdir(), 'movesift-families-'));
+// The parts that write the cards run in child processes (parts.ts): they write into the
+// parent's folder, which the parent hands them in the environment.
+const root = typeof values.keep === 'string' ? path.resolve(values.keep) : (process.env.MOVESIFT_FAMILIES_ROOT ?? mkdtempSync(path.join(os.tmpdir(), 'movesift-families-')));
+process.env.MOVESIFT_FAMILIES_ROOT = root;
 const draws = families.flatMap((f) => Array.from({ length: perFamily }, (_, i) => drawDeployment(f, FIRST_SEED + i, triggers)));
 
 const kept = path.join(root, 'ground-truth.json');
