@@ -4,8 +4,8 @@
  * exactly as the analysis will do it (media/decode-image.ts), that proves the file decodes (a
  * damaged JPEG fails here, before it could join an event; a smaller proof decode is not enough:
  * at 1/8 scale the JPEG decoder reads only DC coefficients and passes corrupt AC data) and tells
- * colour day images from infrared night ones. It costs about what the 48-pixel decode it
- * replaced did, since both decode at a reduced DCT scale. Unchanged files reuse their stored row; files whose last
+ * colour day images from infrared night ones. A smaller decode would cost no less: both run at
+ * a reduced DCT scale. Unchanged files reuse their stored row; files whose last
  * read failed and are unchanged keep their error without another try.
  */
 import path from 'node:path';

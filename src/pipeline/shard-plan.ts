@@ -20,8 +20,9 @@ import { deploymentIdOf, readDeploymentsTable, type DeploymentFacts } from './de
 import type { ScanOptions } from './scan.js';
 import { pipelineError, PipelineErrorCode } from './pipeline-errors.js';
 
-/** Seconds of clip that cost about one image's screening: a 5-minute 1280x720 clip takes 23 s
- *  and an image 1/13.5 s (README, `npm run bench:scan`), so one clip second is about 1 image. */
+/** Seconds of clip that cost about one image's screening, from the speeds `npm run bench:scan`
+ *  measures (a 720p clip and 5-MP photos on one thread; README, Screening a deployment). Change
+ *  it with those figures. */
 export const CLIP_SECOND_IN_IMAGES = 1;
 
 /** The screening options a plan fixes for every shard (as `movesift scan` takes them). */
