@@ -71,7 +71,7 @@ function forget(db: Ledger, deployments: string[], origin: string): void {
   db.prepare('DELETE FROM audit_items WHERE audit_id IN (SELECT id FROM audits WHERE origin = ?)').run(origin);
   for (const d of deployments) {
     db.prepare('DELETE FROM events WHERE deployment_id = ?').run(d); // analyses, previews, windows, event_media cascade
-    db.prepare('DELETE FROM scan_errors WHERE rel_path IN (SELECT rel_path FROM media WHERE deployment_id = ?)').run(d);
+    db.prepare('DELETE FROM scan_errors WHERE (root_id, rel_path) IN (SELECT root_id, rel_path FROM media WHERE deployment_id = ?)').run(d);
     db.prepare('DELETE FROM media WHERE deployment_id = ?').run(d);
     db.prepare('DELETE FROM deployment_calibrations WHERE deployment_id = ?').run(d);
   }
