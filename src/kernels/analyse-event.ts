@@ -33,6 +33,9 @@ export interface EventInput {
    *  trigger; for a burst it adds a reference that shows a subject standing still through the
    *  whole burst, which the burst's own median absorbs. */
   neighbours?: readonly RgbFrame[];
+  /** Per neighbour, another frame of the same trigger (undefined for a single image): where
+   *  they differ that trigger had a visitor, left out of the background (clean-plate.ts). */
+  neighbourPartners?: readonly (RgbFrame | undefined)[];
   /** A ready background (used as is after alignment and gain), instead of `neighbours`. */
   background?: RgbFrame;
   /** 255 = analyse, 0 = ignore (data strip, drawn regions). */
@@ -181,6 +184,7 @@ export function analyseEvent(input: EventInput): EventAnalysis {
       minKept: n === 1 ? 1 : 3,
       alignMinConfidence: params.alignMinConfidence,
       referenceSpectrum: refSpectrum,
+      partners: input.neighbourPartners,
     });
     neighbourFits = db.fits;
     if (db.frame) {

@@ -13,8 +13,12 @@
  * so that a neighbour under another cloud shadow is not taken for another scene; but the
  * median is built from the neighbours as the gain fit left them, not relit: a field smooth
  * enough to follow a shadow can also follow a large, low-contrast animal in the reference and
- * paint it into the background (a single image's only cue). The per-pixel median of the kept
- * neighbours removes a visitor that is in fewer than half of them.
+ * paint it into the background (a single image's only cue). The background is the clean plate
+ * of the kept neighbours (clean-plate.ts): a per-pixel median that leaves out, per neighbour,
+ * the pixels where that trigger's own two frames showed something move (when a second frame of
+ * it is given), so visitors that stood at the same place in half the neighbours or more (a trail,
+ * a bait station) leave no ghost; without second frames it is the plain median, which removes a
+ * visitor in fewer than half of them.
  *
  * Output: uint8 RGB like the inputs, plus the valid mask (0 where a shift left no data) and a
  * record of each neighbour's fit.
@@ -26,7 +30,7 @@ import { medianAbsLumaDiff, toLuma } from './luma.js';
 import { estimateShift, shiftReference, worthCompensating, type Shift, type ShiftReference } from './phase-correlate.js';
 import { applyGainOffset, fitGainOffset } from './photometric.js';
 import { relightMeasured } from './shading.js';
-import { temporalMedian } from './temporal-median.js';
+import { calmMarks, cleanPlate, triggerForeground } from './clean-plate.js';
 import { andValidity, translateBilinear, translateValidity } from './translate.js';
 
 export interface NeighbourFit {
@@ -48,6 +52,8 @@ export interface DeploymentBackground {
   /** 255 where every shifted neighbour had data (and the mask allows); undefined when none was shifted. */
   valid?: Uint8Array;
   fits: NeighbourFit[];
+  /** Share of the frame where visitors in half the kept neighbours or more were left out. */
+  replacedShare?: number;
 }
 
 export interface DeploymentOptions {
@@ -63,6 +69,9 @@ export interface DeploymentOptions {
   alignMinConfidence?: number;
   /** A prepared reference (see shiftReference), when the caller has one already. */
   referenceSpectrum?: ShiftReference;
+  /** Per neighbour, another frame of the same trigger (or undefined for a single image): where
+   *  the two differ, that trigger had a visitor, and the clean plate leaves it out there. */
+  partners?: readonly (RgbFrame | undefined)[];
 }
 
 /**
@@ -83,6 +92,13 @@ export function deploymentBackground(reference: RgbFrame, neighbours: readonly R
     checkSameShape('reference', reference, `neighbours[${i}]`, f);
   });
   if (options.mask) checkSameShape('reference', { ...reference, channels: 1 }, 'mask', options.mask);
+  const partners = options.partners ?? [];
+  if (partners.length > neighbours.length) throw invalidArgument('partners.length', `at most ${neighbours.length}`, partners.length);
+  partners.forEach((f, i) => {
+    if (!f) return;
+    checkFrame(`partners[${i}]`, f, 3);
+    checkSameShape('reference', reference, `partners[${i}]`, f);
+  });
   const minKept = options.minKept ?? 1;
   checkInteger('minKept', minKept, 1, 1000);
   const minConfidence = options.alignMinConfidence ?? 0.15;
@@ -96,7 +112,7 @@ export function deploymentBackground(reference: RgbFrame, neighbours: readonly R
     const normalised = applyGainOffset(frame, fitGainOffset(reference, frame, valid));
     return { normalised, disagreement: medianAbsLumaDiff(refLuma, toLuma(normalised), valid) };
   };
-  const fitted = neighbours.map((nb) => {
+  const fitted = neighbours.map((nb, i) => {
     const shift = estimateShift(spectrum, toLuma(nb));
     let valid: Uint8Array | undefined = mask;
     let compensated = false;
@@ -121,7 +137,8 @@ export function deploymentBackground(reference: RgbFrame, neighbours: readonly R
     // clips its sunlit half at 255, and what was clipped cannot be relit.
     const lit = relightMeasured(refLuma, aligned, valid);
     const relit = lit.spread === 0 ? best.disagreement : Math.min(best.disagreement, onReference(lit.frame, valid).disagreement);
-    return { normalised: best.normalised, valid, fit: { shift, compensated, disagreement: best.disagreement, relitDisagreement: relit, kept: false } as NeighbourFit };
+    const partner = partners[i];
+    return { normalised: best.normalised, valid, partner, fit: { shift, compensated, disagreement: best.disagreement, relitDisagreement: relit, kept: false } as NeighbourFit };
   });
   const yardstick = options.ownDisagreement ?? Math.min(255, ...fitted.map((f) => f.fit.relitDisagreement));
   const limit = TOLERANCE_FACTOR * yardstick + TOLERANCE_LEVELS;
@@ -131,5 +148,15 @@ export function deploymentBackground(reference: RgbFrame, neighbours: readonly R
   if (kept.length < minKept || kept.length === 0) return { fits };
   let valid: Uint8Array | undefined;
   for (const f of kept) if (f.fit.compensated && f.valid) valid = andValidity(valid, f.valid);
-  return { frame: temporalMedian(kept.map((f) => f.normalised)), valid, fits };
+  // Each kept trigger's foreground, found in its own frames and moved as it was moved. Only for
+  // kept ones: a dropped neighbour's two frames are never compared.
+  const foreground = calmMarks(kept.map((f) => (f.partner ? triggerForeground(neighbours[fitted.indexOf(f)], f.partner, { mask }) : undefined))).map((marks, k) => {
+    const f = kept[k];
+    if (!marks || !f.fit.compensated) return marks;
+    const moved = translateBilinear({ width: reference.width, height: reference.height, channels: 1, data: marks }, f.fit.shift.dx, f.fit.shift.dy).frame.data;
+    for (let p = 0; p < moved.length; p++) if (moved[p]) moved[p] = 255; // any share of a marked pixel
+    return moved;
+  });
+  const plate = cleanPlate(kept.map((f) => f.normalised), foreground);
+  return { frame: plate.frame, valid, fits, replacedShare: plate.replaced / (reference.width * reference.height) };
 }

@@ -23,6 +23,9 @@ export interface ScreenEventInput {
   frames: readonly RgbFrame[];
   /** Middle frames of neighbouring triggers of the same camera and light mode (may be empty). */
   neighbours: readonly RgbFrame[];
+  /** Per neighbour, another frame of its trigger (undefined for a single image), so that its
+   *  visitor is left out of the background (clean-plate.ts). */
+  neighbourPartners?: readonly (RgbFrame | undefined)[];
   /** The deployment's data strip by consensus of its triggers, when it had enough of them. */
   deploymentStrip?: DataStrip;
   /** Dense optical flow features too (slower). */
@@ -58,7 +61,7 @@ export function screenEvent(input: ScreenEventInput): EventScreening {
   const own = detectDataStripInFrames(frames.length >= 3 ? frames : [...frames, ...neighbours]);
   const strip = widerStrip(own, input.deploymentStrip);
   const mask = strip.top || strip.bottom ? ignoreMask(width, height, strip) : undefined;
-  const analysis = analyseEvent({ frames, neighbours, mask, flow: input.flow });
+  const analysis = analyseEvent({ frames, neighbours, neighbourPartners: input.neighbourPartners, mask, flow: input.flow });
   const score = scoreEvent(input.model ?? MOTION_MODEL, analysis);
   const best = score.bestTrack >= 0 ? analysis.tracks[score.bestTrack] : undefined;
   const heatFrame = best ? best.points.reduce((m, p) => (p.blob.area > m.blob.area ? p : m)).frame : frames.length >> 1;

@@ -23,6 +23,12 @@ export interface TaskFile {
   display: string;
 }
 
+/** A neighbouring trigger: its middle file, and for a burst another of its files, from which the
+ *  engine learns where that trigger had a visitor (kernels/clean-plate.ts). */
+export interface NeighbourFile extends TaskFile {
+  partner?: TaskFile;
+}
+
 export interface EventTask {
   eventId: string;
   kind: 'burst' | 'single' | 'clip';
@@ -31,7 +37,7 @@ export interface EventTask {
    *  the engine builds a deployment background (aligned, gain-fitted, disagreeing ones dropped,
    *  per-pixel median): a single image's only reference, and for a burst the one that shows a
    *  subject standing still through all its frames. */
-  neighbours: TaskFile[];
+  neighbours: NeighbourFile[];
   width: number;
   height: number;
   videoFps: number;
@@ -72,7 +78,9 @@ export interface TaskWorkspace {
   neighbourFrames: Map<string, RgbFrame>;
 }
 
-/** Decoded neighbour frames kept per thread: 32 frames of 384 x 288 are about 10 MB. */
+/** Decoded neighbour frames kept per thread: 32 frames of 384 x 288 are about 10 MB. Each
+ *  neighbour is two frames (middle and partner), so 32 hold the 12 of one event and those
+ *  the next events share. */
 const NEIGHBOUR_FRAMES_KEPT = 32;
 
 export function createTaskWorkspace(): TaskWorkspace {
@@ -115,20 +123,24 @@ async function runImages(task: EventTask, ws: TaskWorkspace): Promise<TaskOutcom
     }
   }
   if (frames.length === 0) return { ok: false, eventId: task.eventId, failures };
-  // Later events take this one's middle frame as a neighbour: keep it decoded.
-  const middle = task.files.length >> 1;
-  const at = kept.indexOf(middle);
-  if (at >= 0) rememberNeighbour(ws, task.files[middle], task.width, task.height, frames[at]);
+  // Later events take this one's middle frame and first frame as a neighbour: keep them decoded.
+  for (const k of task.files.length >= 2 ? [0, task.files.length >> 1] : [0]) {
+    const at = kept.indexOf(k);
+    if (at >= 0) rememberNeighbour(ws, task.files[k], task.width, task.height, frames[at]);
+  }
   const neighbours: RgbFrame[] = [];
+  const partners: Array<RgbFrame | undefined> = [];
   const neighbourFiles: string[] = [];
   for (const n of task.neighbours) {
     const fr = await decodeNeighbour(ws, n, task.width, task.height);
     if (fr) {
       neighbours.push(fr);
+      // Without its second frame the neighbour still serves, as a single image's does.
+      partners.push(n.partner ? await decodeNeighbour(ws, n.partner, task.width, task.height) : undefined);
       neighbourFiles.push(n.display);
     }
   }
-  const r = screenEvent({ frames, neighbours, deploymentStrip: task.deploymentStrip, flow: task.flow });
+  const r = screenEvent({ frames, neighbours, neighbourPartners: partners, deploymentStrip: task.deploymentStrip, flow: task.flow });
   const a = r.analysis;
   const s = r.score;
   const best = s.bestTrack >= 0 ? a.tracks[s.bestTrack] : undefined;

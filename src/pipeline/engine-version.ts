@@ -17,7 +17,7 @@ export const MODEL_HASH = sha(JSON.stringify([MOTION_MODEL, CLIP_MODEL])).slice(
  * parameter changing (a kernel's rule, the neighbours chosen): ledgers scanned before it are
  * screened again instead of mixing two engines' verdicts.
  */
-export const ENGINE_REVISION = 2;
+export const ENGINE_REVISION = 3;
 export const ENGINE_VERSION = `${pkg.version}+${MODEL_HASH}.r${ENGINE_REVISION}`;
 
 export interface AnalysisSettings {

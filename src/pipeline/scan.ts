@@ -10,7 +10,7 @@ import { openLedger } from '../ledger/open-ledger.js';
 import { createScanStore, type EventPlan, type MediaRow } from '../ledger/scan-store.js';
 import { MAX_EVENT_FRAMES, groupEvents, type Group } from './group-events.js';
 import { ENGINE_VERSION, hashOf, paramHash, type AnalysisSettings } from './engine-version.js';
-import { createTaskWorkspace, runEventTask, type EventTask, type TaskOutcome } from './analyse-task.js';
+import { createTaskWorkspace, runEventTask, type EventTask, type TaskFile, type TaskOutcome } from './analyse-task.js';
 import { deploymentIdOf, readDeploymentsTable, type DeploymentFacts } from './deployments-table.js';
 import { takeInventory } from './inventory.js';
 import { analysisSize } from '../kernels/downscale.js';
@@ -184,13 +184,14 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
             id, deployment_id: dep, kind: g.kind, start_time: items[0].capture_time,
             end_time: (g.kind === 'clip' && items[0].duration_s ? isoPlusSeconds(items[0].capture_time, items[0].duration_s) : undefined) ?? items[items.length - 1].capture_time,
             start_sort_ms: items[0].capture_sort_ms,
-            input_hash: hashOf([...items.map((m) => `${m.rel_path}:${m.fingerprint}`), ...(g.kind === 'clip' ? [] : [...stripKey, ...near.map((m) => `near:${m.rel_path}:${m.fingerprint}`)])]),
+            input_hash: hashOf([...items.map((m) => `${m.rel_path}:${m.fingerprint}`), ...(g.kind === 'clip' ? [] : [...stripKey, ...near.flatMap((m) => [`near:${m.mid.rel_path}:${m.mid.fingerprint}`, ...(m.partner ? [`with:${m.partner.rel_path}:${m.partner.fingerprint}`] : [])])])]),
             media: items.map((m) => m.id),
           };
           plans.push(plan);
           const first = items[0];
           const size = analysisSize(first.width, first.height, Math.min(settings.analysisWidth, first.width));
-          const neighbours = near.map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path }));
+          const taskFile = (m: StoredMedia): TaskFile => ({ abs: path.join(root, m.rel_path), display: m.rel_path });
+          const neighbours = near.map((m) => ({ ...taskFile(m.mid), ...(m.partner ? { partner: taskFile(m.partner) } : {}) }));
           tasks.push({
             plan, rootId, rels: items.map((m) => m.rel_path),
             task: {
@@ -275,11 +276,19 @@ type StoredMedia = MediaRow & { id: number };
  */
 const NEIGHBOURS = 6;
 
-/** For each image event: middle media of the nearest image events (three before, three after,
- *  more on one side when the other runs out) with the same light mode, from which the engine
- *  builds that event's deployment background. One pass per deployment. */
-function imageNeighbours(groups: Group[], byId: Map<number, StoredMedia>): Map<Group, StoredMedia[]> {
+/** A neighbouring trigger as the engine reads it: its middle file, and for a burst its first
+ *  file too (where the two differ, that trigger had a visitor: kernels/clean-plate.ts). */
+interface NearTrigger {
+  mid: StoredMedia;
+  partner?: StoredMedia;
+}
+
+/** For each image event: the nearest image events (three before, three after, more on one side
+ *  when the other runs out) with the same light mode, from which the engine builds that event's
+ *  deployment background. One pass per deployment. */
+function imageNeighbours(groups: Group[], byId: Map<number, StoredMedia>): Map<Group, NearTrigger[]> {
   const mid = (x: Group): StoredMedia => byId.get(x.items[x.items.length >> 1].mediaId)!;
+  const near = (x: Group): NearTrigger => (x.items.length >= 2 ? { mid: mid(x), partner: byId.get(x.items[0].mediaId)! } : { mid: mid(x) });
   const byLight = new Map<string | null, Group[]>();
   for (const g of groups) {
     const light = mid(g).light;
@@ -287,15 +296,15 @@ function imageNeighbours(groups: Group[], byId: Map<number, StoredMedia>): Map<G
     if (list) list.push(g);
     else byLight.set(light, [g]);
   }
-  const out = new Map<Group, StoredMedia[]>();
+  const out = new Map<Group, NearTrigger[]>();
   for (const same of byLight.values()) {
     same.forEach((g, k) => {
-      const near: StoredMedia[] = [];
-      for (let d = 1; near.length < NEIGHBOURS && (k - d >= 0 || k + d < same.length); d++) {
-        if (k - d >= 0) near.push(mid(same[k - d]));
-        if (near.length < NEIGHBOURS && k + d < same.length) near.push(mid(same[k + d]));
+      const list: NearTrigger[] = [];
+      for (let d = 1; list.length < NEIGHBOURS && (k - d >= 0 || k + d < same.length); d++) {
+        if (k - d >= 0) list.push(near(same[k - d]));
+        if (list.length < NEIGHBOURS && k + d < same.length) list.push(near(same[k + d]));
       }
-      out.set(g, near);
+      out.set(g, list);
     });
   }
   return out;
