@@ -138,7 +138,7 @@ export function deploymentBackground(reference: RgbFrame, neighbours: readonly R
     const lit = relightMeasured(refLuma, aligned, valid);
     const relit = lit.spread === 0 ? best.disagreement : Math.min(best.disagreement, onReference(lit.frame, valid).disagreement);
     const partner = partners[i];
-    return { normalised: best.normalised, valid, partner, fit: { shift, compensated, disagreement: best.disagreement, relitDisagreement: relit, kept: false } as NeighbourFit };
+    return { frame: nb, normalised: best.normalised, valid, partner, fit: { shift, compensated, disagreement: best.disagreement, relitDisagreement: relit, kept: false } as NeighbourFit };
   });
   const yardstick = options.ownDisagreement ?? Math.min(255, ...fitted.map((f) => f.fit.relitDisagreement));
   const limit = TOLERANCE_FACTOR * yardstick + TOLERANCE_LEVELS;
@@ -150,7 +150,7 @@ export function deploymentBackground(reference: RgbFrame, neighbours: readonly R
   for (const f of kept) if (f.fit.compensated && f.valid) valid = andValidity(valid, f.valid);
   // Each kept trigger's foreground, found in its own frames and moved as it was moved. Only for
   // kept ones: a dropped neighbour's two frames are never compared.
-  const foreground = calmMarks(kept.map((f) => (f.partner ? triggerForeground(neighbours[fitted.indexOf(f)], f.partner, { mask }) : undefined))).map((marks, k) => {
+  const foreground = calmMarks(kept.map((f) => (f.partner ? triggerForeground(f.frame, f.partner, { mask }) : undefined))).map((marks, k) => {
     const f = kept[k];
     if (!marks || !f.fit.compensated) return marks;
     const moved = translateBilinear({ width: reference.width, height: reference.height, channels: 1, data: marks }, f.fit.shift.dx, f.fit.shift.dy).frame.data;

@@ -35,7 +35,7 @@ export interface EventTask {
   files: TaskFile[];
   /** Middle frames of neighbouring image events of the same camera and light mode, from which
    *  the engine builds a deployment background (aligned, gain-fitted, disagreeing ones dropped,
-   *  per-pixel median): a single image's only reference, and for a burst the one that shows a
+   *  the clean plate of the rest, kernels/clean-plate.ts): a single image's only reference, and for a burst the one that shows a
    *  subject standing still through all its frames. */
   neighbours: NeighbourFile[];
   width: number;
