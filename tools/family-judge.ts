@@ -22,6 +22,8 @@ export interface FamilyResult {
   /** Of the false triggers called likely-blank, those the deployment's own calibration called
    *  so (the fitted model alone would not have). */
   falseBlankByDeployment: number;
+  /** False triggers called likely-blank by the change classifier (classifier/combine.ts). */
+  falseBlankByClassifier: number;
   /** Deployments and light modes by pass two's calibration status. */
   calibration: Record<string, number>;
   /** Mean over deployments with both kinds of the within-deployment AUC. */
@@ -43,7 +45,7 @@ export function aucOf(pos: readonly number[], neg: readonly number[]): number {
 export function judgeFamilies(reports: ReadonlyArray<{ family: FamilyName; report: Report }>, truth: readonly TriggerTruth[]): FamilyResult[] {
   const byFirst = new Map(truth.map((t) => [t.files[0], t]));
   return reports.map(({ family, report }) => {
-    const r: FamilyResult = { family, deployments: 0, animals: 0, animalsKept: 0, weatherAnimals: 0, weatherAnimalsKept: 0, falseTriggers: 0, falseBlank: 0, falseUnsure: 0, falseBlankByDeployment: 0, calibration: {}, meanAuc: NaN, lost: [], unmatched: 0 };
+    const r: FamilyResult = { family, deployments: 0, animals: 0, animalsKept: 0, weatherAnimals: 0, weatherAnimalsKept: 0, falseTriggers: 0, falseBlank: 0, falseUnsure: 0, falseBlankByDeployment: 0, falseBlankByClassifier: 0, calibration: {}, meanAuc: NaN, lost: [], unmatched: 0 };
     const perDeployment = new Map<string, { pos: number[]; neg: number[] }>();
     for (const e of report.events) {
       // A scan reports files relative to the folder it scanned (the family's folder), the truth
@@ -69,6 +71,7 @@ export function judgeFamilies(reports: ReadonlyArray<{ family: FamilyName; repor
         d.neg.push(e.score);
         if (e.verdict === 'likely-blank') r.falseBlank++;
         if (e.verdict === 'likely-blank' && e.rule === 'deployment') r.falseBlankByDeployment++;
+        if (e.verdict === 'likely-blank' && e.rule === 'classifier') r.falseBlankByClassifier++;
         if (e.verdict === 'unsure') r.falseUnsure++;
       }
     }
@@ -94,6 +97,7 @@ export function printFamilyTable(results: readonly FamilyResult[], facts: Record
       'false triggers likely-blank': pct(r.falseBlank, r.falseTriggers),
       'false triggers unsure': r.falseUnsure,
       'of the blank, by the deployment': r.falseBlankByDeployment,
+      'by the classifier': r.falseBlankByClassifier,
       calibration: Object.entries(r.calibration).map(([k, n]) => `${n} ${k}`).join(', '),
       'AUC within deployment': r.meanAuc.toFixed(3),
     })),

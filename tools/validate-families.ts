@@ -12,6 +12,8 @@
  *   npm run validate:families -- --first-seed 3100     other deployments: after a change was
  *   judged on the first seeds, the number to report comes from seeds it was not looked at on
  *   npm run validate:families -- --deployment-cut     with each deployment's own cut (scan --deployment-cut)
+ *   npm run validate:families -- --classifier models/change-classifier.json
+ *                                 motion alone and with the change classifier, the same cards, both tables
  */
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import os from 'node:os';
@@ -24,7 +26,7 @@ import { inParts } from './parts.js';
 import { judgeFamilies, printFamilyTable } from './family-judge.js';
 
 const { values } = parseArgs({
-  options: { deployments: { type: 'string' }, triggers: { type: 'string' }, families: { type: 'string' }, keep: { type: 'string' }, 'first-seed': { type: 'string' }, part: { type: 'string' }, 'deployment-cut': { type: 'boolean' } },
+  options: { deployments: { type: 'string' }, triggers: { type: 'string' }, families: { type: 'string' }, keep: { type: 'string' }, 'first-seed': { type: 'string' }, part: { type: 'string' }, 'deployment-cut': { type: 'boolean' }, classifier: { type: 'string' } },
   allowPositionals: true,
   strict: false,
 });
@@ -53,8 +55,15 @@ const truth = existsSync(kept) ? (JSON.parse(readFileSync(kept, 'utf8')) as Trig
 });
 
 try {
-  const reports = await scanFamilies(root, families, { deploymentCut: values['deployment-cut'] === true });
+  const deploymentCut = values['deployment-cut'] === true;
+  const reports = await scanFamilies(root, families, { deploymentCut });
+  if (typeof values.classifier === 'string') console.log('Motion alone:');
   printFamilyTable(judgeFamilies(reports, truth), FAMILY_FACTS);
+  if (typeof values.classifier === 'string') {
+    const withClassifier = await scanFamilies(root, families, { deploymentCut, classifier: path.resolve(values.classifier), suffix: '-classifier' });
+    console.log(`With the change classifier (${values.classifier}):`);
+    printFamilyTable(judgeFamilies(withClassifier, truth), FAMILY_FACTS);
+  }
 } finally {
   if (typeof values.keep !== 'string') rmSync(root, { recursive: true, force: true });
   else {

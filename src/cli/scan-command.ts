@@ -27,6 +27,10 @@ Options:
   --video-fps <n>         frames per second analysed in videos                      default ${DEFAULTS.videoFps}
   --event-gap <s>         seconds between images that start a new event             default ${DEFAULT_EVENT_GAP_S}
   --flow                  add dense optical flow features (slower)
+  --classifier <json>     a change classifier's manifest (models/change-classifier.json is
+                          the shipped one): its opinion on each event's strongest changes
+                          joins the motion score by the rule in the manifest; the report and
+                          review say where it changed a verdict. Trained on generated scenes.
   --deployment-cut        let each deployment raise its likely-blank cut to the bulk of its own
                           scores (at most to 0.5). More false triggers called likely-blank, and
                           some low-scoring animals with them: measured on held-out scenes, about
@@ -79,10 +83,11 @@ export const SCREENING_FLAGS = {
   'video-fps': { type: 'string' },
   'event-gap': { type: 'string' },
   flow: { type: 'boolean' },
+  classifier: { type: 'string' },
   'deployment-cut': { type: 'boolean' },
   deployments: { type: 'string' },
 } as const;
-export type ScreeningFlags = { 'analysis-width'?: string; 'video-fps'?: string; 'event-gap'?: string; flow?: boolean; 'deployment-cut'?: boolean; deployments?: string };
+export type ScreeningFlags = { 'analysis-width'?: string; 'video-fps'?: string; 'event-gap'?: string; flow?: boolean; classifier?: string; 'deployment-cut'?: boolean; deployments?: string };
 
 const SCAN_FLAGS = {
   ...SCREENING_FLAGS,
@@ -102,6 +107,7 @@ export function scanOptionsOf(values: ScreeningFlags): ShardScanOptions {
     videoFps: numberFlag('video-fps', values['video-fps'], 0.1, 60),
     eventGapS: numberFlag('event-gap', values['event-gap'], 0, 86400),
     flow: !!values.flow,
+    ...(values.classifier ? { classifier: path.resolve(values.classifier) } : {}),
     deploymentCut: !!values['deployment-cut'],
     deploymentsTable: values.deployments,
   };
@@ -118,7 +124,7 @@ export async function scanCommand(argv: string[]): Promise<number> {
   let shard: { plan: ShardPlan; index: number; scratch: string } | undefined;
   if (values.plan) {
     if (positionals.length) throw usageError('scan: with --plan the folders come from the plan; give no folders. See `movesift scan --help`.');
-    for (const f of ['analysis-width', 'video-fps', 'event-gap', 'flow', 'deployment-cut', 'deployments'] as const) if (values[f] !== undefined) throw usageError(`scan: the plan fixes the screening options, so every shard screens alike; --${f} cannot be given with --plan`);
+    for (const f of ['analysis-width', 'video-fps', 'event-gap', 'flow', 'classifier', 'deployment-cut', 'deployments'] as const) if (values[f] !== undefined) throw usageError(`scan: the plan fixes the screening options, so every shard screens alike; --${f} cannot be given with --plan`);
     const plan = parsePlan(readTextOrUsage(values.plan), values.plan);
     const index = shardIndex(plan, numberFlag('shard', values.shard, 0, 1e9, true));
     roots = plan.roots;

@@ -103,6 +103,16 @@ export interface EventAnalysis {
   neighbourFits?: NeighbourFit[];
   /** Whether a background from other triggers took part (given, or built from neighbours). */
   deploymentBackground: boolean;
+  /** The images the change was measured on, for what looks at the change around a blob
+   *  (classifier/crops.ts): the frames aligned, relit and gain-fitted to the reference frame,
+   *  the burst's own median (three frames or more) and the background from other triggers. */
+  planes: EventPlanes;
+}
+
+export interface EventPlanes {
+  work: RgbFrame[];
+  median?: RgbFrame;
+  deployment?: RgbFrame;
 }
 
 export function analyseEvent(input: EventInput): EventAnalysis {
@@ -298,5 +308,5 @@ export function analyseEvent(input: EventInput): EventAnalysis {
     lightSpread,
     movingLight: lightSpread >= params.movingLightSpread,
   };
-  return { width, height, frames: results, tracks, trackFeatures: feats, trackFlows, context, heat, activity, neighbourFits, deploymentBackground: deployment !== undefined };
+  return { width, height, frames: results, tracks, trackFeatures: feats, trackFlows, context, heat, activity, neighbourFits, deploymentBackground: deployment !== undefined, planes: { work, median: n >= 3 ? background : undefined, deployment } };
 }

@@ -15,6 +15,8 @@ export interface PassEventRow {
   rule: string | null;
   /** The analysis's EventContext as JSON, null when it has none. */
   context: string | null;
+  /** The change classifier's opinion and rule as the scan stored them (JSON), null without one. */
+  classifier: string | null;
   light: 'colour' | 'infrared' | null;
   /** 1 when a person's decision stands on the event: its verdict is left as they saw it. */
   decided: number;
@@ -30,7 +32,7 @@ export interface CalibrationRow extends DeploymentCalibration {
 export function createDeploymentPassStore(db: Ledger) {
   const s = {
     events: db.prepare<[string], PassEventRow>(
-      `SELECT e.id, a.score, a.verdict, a.rule, json_extract(a.features, '$.context') AS context,
+      `SELECT e.id, a.score, a.verdict, a.rule, json_extract(a.features, '$.context') AS context, json_extract(a.features, '$.classifier') AS classifier,
          (SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id
            WHERE em.event_id = e.id AND em.position = (SELECT count(*) FROM event_media c WHERE c.event_id = e.id) / 2) AS light,
          (ld.decision IS NOT NULL) AS decided

@@ -12,6 +12,10 @@ import type { RgbFrame } from '../kernels/frame.js';
 import { createClipScreener } from '../kernels/screen-clip.js';
 import { screenEvent } from '../kernels/screen-event.js';
 import { FEATURE_NAMES, type VerdictName } from '../kernels/score.js';
+import type { EventScreening } from '../kernels/screen-event.js';
+import { joinedVerdict, type CombineRule, type DrivenBy } from '../classifier/combine.js';
+import { changeCrops, cropTargets } from '../classifier/crops.js';
+import { loadClassifier, type LoadedClassifier } from '../classifier/session.js';
 import type { ActivityWindow } from '../kernels/activity-windows.js';
 import { decodeImage } from '../media/decode-image.js';
 import { decodeVideo } from '../media/decode-video.js';
@@ -49,6 +53,8 @@ export interface EventTask {
   /** The deployment's data strip by consensus of its triggers (deployment-strip.ts), when it had
    *  enough of them; the event ignores the wider of it and its own. */
   deploymentStrip?: DataStrip;
+  /** A change classifier's manifest (absolute path) whose opinion joins the motion score. */
+  classifier?: string;
 }
 
 export interface TaskFailure {
@@ -76,6 +82,8 @@ const failureOf = (display: string, e: unknown, stage: 'read' | 'partial' = 'rea
  */
 export interface TaskWorkspace {
   neighbourFrames: Map<string, RgbFrame>;
+  /** Classifier sessions by manifest path, loaded on first use (one per thread). */
+  classifiers: Map<string, Promise<LoadedClassifier>>;
 }
 
 /** Decoded neighbour frames kept per thread: 32 frames of 384 x 288 are about 10 MB. Each
@@ -84,7 +92,7 @@ export interface TaskWorkspace {
 const NEIGHBOUR_FRAMES_KEPT = 32;
 
 export function createTaskWorkspace(): TaskWorkspace {
-  return { neighbourFrames: new Map() };
+  return { neighbourFrames: new Map(), classifiers: new Map() };
 }
 
 function rememberNeighbour(ws: TaskWorkspace, f: TaskFile, w: number, h: number, frame: RgbFrame): void {
@@ -143,6 +151,7 @@ async function runImages(task: EventTask, ws: TaskWorkspace): Promise<TaskOutcom
   const r = screenEvent({ frames, neighbours, neighbourPartners: partners, deploymentStrip: task.deploymentStrip, flow: task.flow });
   const a = r.analysis;
   const s = r.score;
+  const second = task.classifier ? await secondOpinion(ws, task.classifier, r) : undefined;
   const best = s.bestTrack >= 0 ? a.tracks[s.bestTrack] : undefined;
   const previews: PreviewFile[] = [];
   for (let k = 0; k < frames.length; k++) previews.push(await writeFramePreview(task.cacheDir, task.eventId, kept[k], frames[k], null));
@@ -151,8 +160,10 @@ async function runImages(task: EventTask, ws: TaskWorkspace): Promise<TaskOutcom
     ok: true,
     eventId: task.eventId,
     score: s.score,
-    verdict: s.verdict,
+    verdict: second ? second.verdict : s.verdict,
     features: {
+      // The classifier's opinion and its rule (classifier/combine.ts), which the second pass applies again.
+      classifier: second,
       names: FEATURE_NAMES,
       best: s.bestTrack >= 0 ? r.rows[s.bestTrack].map((v) => round(v, 4)) : null,
       tracks: a.tracks.length,
@@ -184,6 +195,32 @@ async function runImages(task: EventTask, ws: TaskWorkspace): Promise<TaskOutcom
     previews,
     failures,
   };
+}
+
+/** What the ledger keeps of the classifier's opinion: the model, its opinion (the most
+ *  subject-like crop) and each crop's, its rule, motion's own verdict and which decided. */
+interface SecondOpinion {
+  model: string;
+  sha256: string;
+  score: number;
+  crops: Array<{ track: number; p: number }>;
+  rule: CombineRule;
+  motionVerdict: VerdictName;
+  verdict: VerdictName;
+  drivenBy: DrivenBy;
+}
+
+/** The classifier's opinion on the event's strongest tracks, joined with the motion verdict. */
+async function secondOpinion(ws: TaskWorkspace, manifest: string, r: EventScreening): Promise<SecondOpinion> {
+  let loading = ws.classifiers.get(manifest);
+  if (!loading) ws.classifiers.set(manifest, (loading = loadClassifier(manifest)));
+  const c = await loading;
+  const targets = cropTargets(r.analysis, r.score.trackScores, c.manifest.cropsPerEvent);
+  const p = await c.subjectProbabilities(changeCrops(r.analysis, targets, c.manifest.input.size), targets.length);
+  // Rounded as stored, so that the second pass, which reads it back, judges alike.
+  const opinion = round(targets.reduce((m, _, i) => Math.max(m, p[i]), 0), 4);
+  const v = joinedVerdict(c.manifest.combine, r.score.verdict, r.score.score, opinion, r.analysis.context);
+  return { model: c.manifest.name, sha256: c.manifest.sha256, score: opinion, crops: targets.map((t, i) => ({ track: t.track, p: round(p[i], 4) })), rule: c.manifest.combine, motionVerdict: r.score.verdict, ...v };
 }
 
 async function runClip(task: EventTask): Promise<TaskOutcome> {

@@ -1,7 +1,8 @@
 /**
  * The scan's second pass, per deployment and light mode: what one event cannot know about its
  * camera. Today that is the deployment's own calibration (kernels/deployment-calibration.ts):
- * the bulk of its event scores, and a blank cut raised to it where the premise holds. It reads
+ * the bulk of its event scores, and a blank cut raised to it where the premise holds; where the
+ * scan had a change classifier, its call stands on top (classifier/combine.ts). It reads
  * only what pass one stored (scores and contexts), so it is cheap, runs after every scan over
  * every deployment the scan touched, and is idempotent: run again, it changes nothing; after a
  * new card, only the verdicts the new statistics move change. A scan killed before it leaves
@@ -12,7 +13,8 @@ import type { Ledger } from '../ledger/open-ledger.js';
 import { createDeploymentPassStore, type CalibrationRow } from '../ledger/deployment-pass-store.js';
 import { calibrateDeployment, deploymentVerdict, MIN_USABLE } from '../kernels/deployment-calibration.js';
 import { MOTION_MODEL } from '../kernels/model.js';
-import type { BlankGuard } from '../kernels/score.js';
+import type { BlankGuard, VerdictName } from '../kernels/score.js';
+import { joinedVerdict, type CombineRule } from '../classifier/combine.js';
 import { ENGINE_VERSION } from './engine-version.js';
 
 export interface PassResult {
@@ -59,7 +61,14 @@ export function deploymentPass(db: Ledger, deployments: readonly string[], o: { 
         : !o.raise ? { ...estimate, status: 'off' as const, cut: thresholds.blank }
         : estimate;
       rows.push({ deployment: dep, light, fittedBlank: thresholds.blank, engineVersion: ENGINE_VERSION, ...c });
-      for (const e of same) if (!e.decided) verdicts.push({ id: e.id, ...deploymentVerdict(thresholds, c.cut, e.score, e.guard) });
+      for (const e of same) {
+        if (e.decided) continue;
+        const v = deploymentVerdict(thresholds, c.cut, e.score, e.guard);
+        // The classifier's call, where the scan had one, stands on top of either rule (classifier/combine.ts).
+        const second = e.classifier ? (JSON.parse(e.classifier) as { score: number; rule: CombineRule }) : undefined;
+        const joined = second ? joinedVerdict(second.rule, v.verdict as VerdictName, e.score, second.score, e.guard) : undefined;
+        verdicts.push({ id: e.id, ...(joined?.drivenBy === 'classifier' ? { verdict: joined.verdict, rule: 'classifier' } : v) });
+      }
     }
     out.changed += store.settle(dep, rows, verdicts);
     out.rows.push(...rows);

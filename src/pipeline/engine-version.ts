@@ -24,6 +24,9 @@ export interface AnalysisSettings {
   analysisWidth: number;
   videoFps: number;
   flow: boolean;
+  /** The change classifier in use: its file's SHA-256 and a hash of its combine rule (absent
+   *  without one, so that hashes of scans without a classifier are as before). */
+  classifier?: string;
 }
 
 export function paramHash(s: AnalysisSettings): string {

@@ -10,6 +10,7 @@ import { openLedger } from '../ledger/open-ledger.js';
 import { createScanStore, type EventPlan, type MediaRow } from '../ledger/scan-store.js';
 import { MAX_EVENT_FRAMES, groupEvents, type Group } from './group-events.js';
 import { ENGINE_VERSION, hashOf, paramHash, type AnalysisSettings } from './engine-version.js';
+import { loadClassifier } from '../classifier/session.js';
 import { createTaskWorkspace, runEventTask, type EventTask, type TaskFile, type TaskOutcome } from './analyse-task.js';
 import { deploymentIdOf, readDeploymentsTable, type DeploymentFacts } from './deployments-table.js';
 import { takeInventory } from './inventory.js';
@@ -31,6 +32,8 @@ export interface ScanOptions {
   videoFps?: number;
   eventGapS?: number;
   flow?: boolean;
+  /** A change classifier's manifest (classifier/manifest.ts), checked before anything is read. */
+  classifier?: string;
   /** Let pass two raise each deployment's likely-blank cut (kernels/deployment-calibration.ts).
    *  Off by default: it trades low-scoring animals for false triggers (docs/held-out-validation.md). */
   deploymentCut?: boolean;
@@ -68,6 +71,13 @@ const eventIdOf = (deployment: string, firstRel: string): string => 'e' + create
 export async function scan(o: ScanOptions): Promise<ScanSummary> {
   const t0 = Date.now();
   const settings: AnalysisSettings = { analysisWidth: o.analysisWidth ?? DEFAULTS.analysisWidth, videoFps: o.videoFps ?? DEFAULTS.videoFps, flow: !!o.flow };
+  // A model that does not keep its contract is refused before the ledger is touched.
+  const classifier = o.classifier ? path.resolve(o.classifier) : undefined;
+  if (classifier) {
+    const c = await loadClassifier(classifier);
+    settings.classifier = hashOf([c.manifest.sha256, JSON.stringify(c.manifest.combine), String(c.manifest.cropsPerEvent)]);
+    await c.release();
+  }
   const gap = o.eventGapS ?? DEFAULTS.eventGapS;
   const emit = o.onProgress ?? (() => {});
   const table = o.deploymentsTable ? readDeploymentsTable(o.deploymentsTable) : new Map<string, DeploymentFacts>();
@@ -196,7 +206,7 @@ export async function scan(o: ScanOptions): Promise<ScanSummary> {
             plan, rootId, rels: items.map((m) => m.rel_path),
             task: {
               eventId: id, kind: g.kind, files: items.map((m) => ({ abs: path.join(root, m.rel_path), display: m.rel_path })), neighbours, width: size.width, height: size.height,
-              videoFps: settings.videoFps, durationS: g.kind === 'clip' ? (first.duration_s ?? undefined) : undefined, flow: settings.flow, cacheDir, deploymentStrip: consensus.strip,
+              videoFps: settings.videoFps, durationS: g.kind === 'clip' ? (first.duration_s ?? undefined) : undefined, flow: settings.flow, cacheDir, deploymentStrip: consensus.strip, ...(classifier ? { classifier } : {}),
             },
           });
         }

@@ -26,7 +26,7 @@ import { pipelineError, PipelineErrorCode } from './pipeline-errors.js';
 export const CLIP_SECOND_IN_IMAGES = 1;
 
 /** The screening options a plan fixes for every shard (as `movesift scan` takes them). */
-export type ShardScanOptions = Pick<ScanOptions, 'analysisWidth' | 'videoFps' | 'eventGapS' | 'flow' | 'deploymentCut' | 'deploymentsTable'>;
+export type ShardScanOptions = Pick<ScanOptions, 'analysisWidth' | 'videoFps' | 'eventGapS' | 'flow' | 'classifier' | 'deploymentCut' | 'deploymentsTable'>;
 
 export interface PlannedDeployment {
   root: string;

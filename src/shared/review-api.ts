@@ -101,8 +101,18 @@ export interface ClipDetail {
   scores: number[];
 }
 
-/** Which rule decided a verdict: the fitted model's, or the deployment's own calibration. */
-export type VerdictRule = 'model' | 'deployment';
+/** Which rule decided a verdict: the fitted model's, the deployment's own calibration, or the
+ *  change classifier's second opinion (classifier/combine.ts). */
+export type VerdictRule = 'model' | 'deployment' | 'classifier';
+
+/** What an event's features keep of the change classifier's opinion (pipeline/analyse-task.ts). */
+export interface ClassifierOpinion {
+  model: string;
+  score: number;
+  rule: { classifierBlank: number; motionCeiling: number };
+  motionVerdict: string;
+  drivenBy: 'motion' | 'classifier';
+}
 
 /** Pass two's calibration of the event's deployment and light mode (kernels/deployment-calibration.ts). */
 export interface EventCalibration {

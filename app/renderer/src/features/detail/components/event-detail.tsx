@@ -1,5 +1,5 @@
 /** One event opened from the grid: header facts, then the burst or the clip view. */
-import type { Decision, EventDetail } from '../../../../../../src/shared/review-api';
+import type { ClassifierOpinion, Decision, EventDetail } from '../../../../../../src/shared/review-api';
 import type { Action } from '../../../shared/keys';
 import { DECISION_LABEL, VERDICT_LABEL, shortTime } from '../../../shared/format';
 import { useEventDetail } from '../hooks/use-event-detail';
@@ -61,10 +61,14 @@ export function EventDetailView({ id, heat, position, decision: current, problem
  *  set aside: low-scoring animals fall in the same band of scores. */
 function RuleNote({ event }: { event: EventDetail }) {
   const c = event.calibration;
-  if (!c) return null;
   const t = (v: number) => v.toFixed(3);
   let text: string;
-  if (event.rule === 'deployment') {
+  const second = (event.features as { classifier?: ClassifierOpinion } | null)?.classifier;
+  if (event.rule === 'classifier' && second) {
+    text = `Likely blank by the change classifier's second opinion: motion alone said ${second.motionVerdict} (score ${t(event.score)}), and nothing among the strongest changes looked like a subject to ${second.model} (${t(second.score)}, below ${t(second.rule.classifierBlank)}). The classifier was trained on generated scenes only: look before setting it aside.`;
+  } else if (!c) {
+    return null;
+  } else if (event.rule === 'deployment') {
     text = `Likely blank by this deployment's own calibration: here, scores below ${t(c.cut)} are what its usual false triggers score (the fitted model alone calls blank below ${t(c.fittedBlank)}). An animal that scored low can hide in this band: look before setting it aside.`;
   } else if (c.status === 'off') text = `Decided by the fitted model (blank below ${t(c.fittedBlank)}).`;
   else if (c.status === 'labels') text = `Decided by the label calibration made from people's decisions (blank below ${t(c.cut)}).`;
@@ -73,7 +77,7 @@ function RuleNote({ event }: { event: EventDetail }) {
   else if (c.cut > c.fittedBlank) text = `Decided by the fitted model (blank below ${t(c.fittedBlank)}); this deployment's own calibration (blank below ${t(c.cut)}) did not change it.`;
   else text = `Decided by the fitted model (blank below ${t(c.fittedBlank)}); this deployment's own triggers gave no reason to move it.`;
   return (
-    <div className={`rule-note${event.rule === 'deployment' ? ' rule-deployment' : ''}`} data-testid="rule-note" data-rule={event.rule}>
+    <div className={`rule-note${event.rule === 'deployment' || event.rule === 'classifier' ? ' rule-deployment' : ''}`} data-testid="rule-note" data-rule={event.rule}>
       {text}
     </div>
   );
