@@ -15,7 +15,7 @@ import path from 'node:path';
 import { activityWindows } from '../src/kernels/activity-windows.js';
 import { MOTION_MODEL } from '../src/kernels/model.js';
 import { expandFeatures, FEATURE_NAMES, trackScore, type MotionModel } from '../src/kernels/score.js';
-import { fitLogistic, PENALTIES } from './logistic.js';
+import { fitLogistic, PENALTIES } from '../src/shared/stats/logistic.js';
 import { inParts } from './parts.js';
 import { CLIP_FIT_SEEDS, clipPlan } from './scenes/clip-plans.js';
 import { runClipPlan, type ClipRecord } from './scenes/clip-run.js';

@@ -42,7 +42,7 @@ import { ALL_CATEGORIES, ANIMAL_CATEGORIES } from './scenes/categories.js';
 import { mixedRequests, sceneRequests } from './scenes/evaluate.js';
 import { recordScore, sceneRecord, type SceneRecord } from './scenes/scene-record.js';
 import { FIT_SEEDS, MIXED_FIT_SEEDS } from './scenes/seeds.js';
-import { fitLogistic, PENALTIES } from './logistic.js';
+import { fitLogistic, PENALTIES } from '../src/shared/stats/logistic.js';
 import { recallThreshold, sampleSizeForZeroMisses } from '../src/shared/stats/binomial.js';
 import { inParts } from './parts.js';
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { fitLogistic } from '../../tools/logistic.js';
+import { fitLogistic } from '../../src/shared/stats/logistic.js';
 import { mulberry32 } from '../../src/shared/stats/seeded-random.js';
 
 function sample(n: number, truth: number[], bias: number, seed: number) {
