@@ -24,7 +24,7 @@
  * Change together: score.ts verdictFor (the rule this extends), pipeline/deployment-pass.ts
  * (which groups events and stores the result), the review view's wording of the rule.
  */
-import { blankScore, verdictFor, Verdict, type BlankGuard, type VerdictName, type VerdictThresholds } from './score.js';
+import { blankScore, verdictFor, Verdict, type BlankGuard, type VerdictName } from './score.js';
 
 /** Spreads above the bulk's median that an event must reach to stand out of it: about the
  *  one-sided 98th percentile of a normal bulk (our choice, not fitted). */
@@ -99,9 +99,9 @@ export type VerdictRule = 'model' | 'deployment';
  * event likely-blank that the fitted model alone would not have. The context guards
  * (score.ts blankScore) hold under both.
  */
-export function deploymentVerdict(thresholds: VerdictThresholds, cut: number, score: number, guard: BlankGuard = {}): { verdict: VerdictName; rule: VerdictRule } {
+export function deploymentVerdict(thresholds: { blank: number; motion: number }, cut: number, score: number, guard: BlankGuard = {}): { verdict: VerdictName; rule: VerdictRule } {
   const model = verdictFor({ thresholds }, score, guard);
   if (cut <= thresholds.blank || model === Verdict.likelyBlank) return { verdict: model, rule: 'model' };
-  const raised = score < cut && blankScore(score, guard, thresholds.movingLight) < cut;
+  const raised = score < cut && blankScore(score, guard) < cut;
   return raised ? { verdict: Verdict.likelyBlank, rule: 'deployment' } : { verdict: model, rule: 'model' };
 }

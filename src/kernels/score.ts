@@ -121,25 +121,16 @@ export type BlankGuard = Partial<Pick<EventContext, 'noBackground' | 'noReferenc
  */
 export const MOVING_LIGHT_BLANK = 0.028;
 
-/** The cuts a verdict is made by: those of the motion model, or of a rule joining it with a
- *  classifier (classifier/combine.ts). `movingLight`: under moving light an event is
- *  likely-blank only below it (MOVING_LIGHT_BLANK when absent, the motion model's own). */
-export interface VerdictThresholds {
-  blank: number;
-  motion: number;
-  movingLight?: number;
-}
-
 /**
  * The score an event counts with against the blank threshold: 1 (never blank) when no
  * background from other triggers took part (a subject that never moved cannot show then; a
- * single image shows nothing at all), and under moving light when the score is at least the
- * moving-light bound (such light sets off change all over the frame, among which an animal
+ * single image shows nothing at all), and under moving light when the score is at least
+ * MOVING_LIGHT_BLANK (such light sets off change all over the frame, among which an animal
  * scores like the light); otherwise the score itself.
  */
-export function blankScore(score: number, guard: BlankGuard = {}, movingLightBound = MOVING_LIGHT_BLANK): number {
+export function blankScore(score: number, guard: BlankGuard = {}): number {
   if (guard.noBackground ?? guard.noReference) return 1;
-  if (guard.movingLight && score >= movingLightBound) return 1;
+  if (guard.movingLight && score >= MOVING_LIGHT_BLANK) return 1;
   return score;
 }
 
@@ -148,11 +139,10 @@ export function blankScore(score: number, guard: BlankGuard = {}, movingLightBou
  * likely-blank only if the event's context allows (blankScore), unsure otherwise; a high score
  * is motion whatever the context.
  */
-export function verdictFor(model: { thresholds: VerdictThresholds }, score: number, guard: BlankGuard = {}): VerdictName {
+export function verdictFor(model: Pick<MotionModel, 'thresholds'>, score: number, guard: BlankGuard = {}): VerdictName {
   checkNumber('score', score, 0, 1);
-  const t = model.thresholds;
-  if (score < t.blank) return blankScore(score, guard, t.movingLight) < t.blank ? Verdict.likelyBlank : Verdict.unsure;
-  if (score >= t.motion) return Verdict.motion;
+  if (score < model.thresholds.blank) return blankScore(score, guard) < model.thresholds.blank ? Verdict.likelyBlank : Verdict.unsure;
+  if (score >= model.thresholds.motion) return Verdict.motion;
   return Verdict.unsure;
 }
 
