@@ -11,8 +11,9 @@
  * is shape, texture and how the change sits in them. The floor keeps a flat patch (sky, sand)
  * from turning its noise into strong change.
  *
- * Change together: the manifest's `preprocess` name (manifest.ts PREPROCESS), the training
- * script (tools/classifier/), and any shipped model (retrain on a change of meaning).
+ * Change together: PREPROCESS (a new name for any change of meaning: manifests name the one
+ * they were trained with, manifest.ts), the training script (tools/classifier/), and the
+ * shipped model (trained again).
  */
 import type { EventAnalysis } from '../kernels/analyse-event.js';
 import type { Blob } from '../kernels/components.js';

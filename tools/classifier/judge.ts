@@ -10,7 +10,8 @@ import type { CropSet } from './crop-data.js';
 import { eventProbabilities } from './train.js';
 
 /** The classifier's blank cut is the lowest opinion it gave any animal of the fitting set divided
- *  by this (our choice: in-family validation animals went to a third of the fitting set's lowest). */
+ *  by this (our choice: the lowest of a few hundred animals is not the lowest of the next
+ *  thousand; what validation found below it is in docs/classifier.md). */
 export const CUT_MARGIN = 4;
 /** Motion scores from here up are out of the classifier's reach (our choice: the upper part of
  *  the motion model's unsure-to-motion range, where motion alone is fairly sure). */
