@@ -12,6 +12,7 @@ import { applyCommand, undoCommand } from './apply-command.js';
 import { auditCommand } from './audit-command.js';
 import { exportCommand } from './export-command.js';
 import { calibrateCommand } from './calibrate-command.js';
+import { learnCommand } from './learn-command.js';
 import { cutCommand } from './cut-command.js';
 import { shardCommand } from './shard-command.js';
 import { mergeCommand } from './merge-command.js';
@@ -33,6 +34,7 @@ Commands:
   audit <ledger> --sample <n>          check set-aside events by a random sample: miss-rate interval
   export <ledger> --format csv|camtrap-dp --out <path>   the result as CSV or a Camtrap DP package
   calibrate <ledger> --recall 0.99     the likely-blank threshold from people's labels
+  learn <ledger> [--use]               a model per deployment learned from people's decisions
   cut <ledger> --out <folder>          each clip's activity windows as separate files, with a MaxN sheet
   shard plan <folder>... --shards <n>  split a scan into whole-deployment shards for a cluster
   merge <shard.ledger>... --ledger <f> join the shards' ledgers into one
@@ -40,7 +42,7 @@ Commands:
 
 Run \`movesift <command> --help\` for a command's options; \`movesift --version\` for the version.`;
 
-const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand, review: reviewCommand, decide: decideCommand, apply: applyCommand, undo: undoCommand, audit: auditCommand, export: exportCommand, calibrate: calibrateCommand, cut: cutCommand, shard: shardCommand, merge: mergeCommand, slurm: slurmCommand };
+const COMMANDS: Record<string, (argv: string[]) => Promise<number>> = { scan: scanCommand, report: reportCommand, review: reviewCommand, decide: decideCommand, apply: applyCommand, undo: undoCommand, audit: auditCommand, export: exportCommand, calibrate: calibrateCommand, learn: learnCommand, cut: cutCommand, shard: shardCommand, merge: mergeCommand, slurm: slurmCommand };
 
 export async function main(argv: string[]): Promise<number> {
   const [cmd, ...rest] = argv;

@@ -17,6 +17,8 @@ export interface PassEventRow {
   context: string | null;
   /** The change classifier's opinion and rule as the scan stored them (JSON), null without one. */
   classifier: string | null;
+  /** The best track's feature row (JSON), what a model learned from decisions reads. */
+  best: string | null;
   light: 'colour' | 'infrared' | null;
   /** 1 when a person's decision stands on the event: its verdict is left as they saw it. */
   decided: number;
@@ -32,7 +34,7 @@ export interface CalibrationRow extends DeploymentCalibration {
 export function createDeploymentPassStore(db: Ledger) {
   const s = {
     events: db.prepare<[string], PassEventRow>(
-      `SELECT e.id, a.score, a.verdict, a.rule, json_extract(a.features, '$.context') AS context, json_extract(a.features, '$.classifier') AS classifier,
+      `SELECT e.id, a.score, a.verdict, a.rule, json_extract(a.features, '$.context') AS context, json_extract(a.features, '$.classifier') AS classifier, json_extract(a.features, '$.best') AS best,
          (SELECT m.light FROM event_media em JOIN media m ON m.id = em.media_id
            WHERE em.event_id = e.id AND em.position = (SELECT count(*) FROM event_media c WHERE c.event_id = e.id) / 2) AS light,
          (ld.decision IS NOT NULL) AS decided

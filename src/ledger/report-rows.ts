@@ -11,7 +11,7 @@ export interface ReportEventRow {
   end_time: string;
   verdict: 'likely-blank' | 'unsure' | 'motion';
   score: number;
-  rule: 'model' | 'deployment' | 'classifier' | null;
+  rule: 'model' | 'deployment' | 'classifier' | 'learned' | null;
   files: string;
   windows: string | null;
   decision: 'keep' | 'set-aside' | null;

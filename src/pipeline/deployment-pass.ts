@@ -2,7 +2,8 @@
  * The scan's second pass, per deployment and light mode: what one event cannot know about its
  * camera. Today that is the deployment's own calibration (kernels/deployment-calibration.ts):
  * the bulk of its event scores, and a blank cut raised to it where the premise holds; where the
- * scan had a change classifier, its call stands on top (classifier/combine.ts). It reads
+ * scan had a change classifier, its call stands on top (classifier/combine.ts), and a model
+ * learned from the deployment's own decisions over both (classifier/learned-model.ts). It reads
  * only what pass one stored (scores and contexts), so it is cheap, runs after every scan over
  * every deployment the scan touched, and is idempotent: run again, it changes nothing; after a
  * new card, only the verdicts the new statistics move change. A scan killed before it leaves
@@ -13,7 +14,9 @@ import type { Ledger } from '../ledger/open-ledger.js';
 import { createDeploymentPassStore, type CalibrationRow } from '../ledger/deployment-pass-store.js';
 import { calibrateDeployment, deploymentVerdict, MIN_USABLE } from '../kernels/deployment-calibration.js';
 import { MOTION_MODEL } from '../kernels/model.js';
-import type { BlankGuard, VerdictName } from '../kernels/score.js';
+import { FEATURE_NAMES, type BlankGuard, type VerdictName } from '../kernels/score.js';
+import { createLearnedStore } from '../ledger/learned-store.js';
+import { learnedVerdict, storedRow, type LearnedModel } from '../classifier/learned-model.js';
 import { joinedVerdict, type CombineRule } from '../classifier/combine.js';
 import { ENGINE_VERSION } from './engine-version.js';
 
@@ -45,7 +48,10 @@ export function deploymentPass(db: Ledger, deployments: readonly string[], o: { 
   const blank = labelled ?? MOTION_MODEL.thresholds.blank;
   const thresholds = { blank, motion: Math.max(blank, MOTION_MODEL.thresholds.motion) };
   const out: PassResult = { rows: [], changed: 0 };
+  const learnedStore = createLearnedStore(db);
   for (const dep of deployments) {
+    const kept = learnedStore.active(dep);
+    const learned = kept ? (JSON.parse(kept.model) as LearnedModel) : undefined;
     const events = store.events(dep).map((e) => ({ ...e, guard: (e.context ? JSON.parse(e.context) : {}) as BlankGuard }));
     const byLight = new Map<string, typeof events>();
     for (const e of events) {
@@ -67,7 +73,14 @@ export function deploymentPass(db: Ledger, deployments: readonly string[], o: { 
         // The classifier's call, where the scan had one, stands on top of either rule (classifier/combine.ts).
         const second = e.classifier ? (JSON.parse(e.classifier) as { score: number; rule: CombineRule }) : undefined;
         const joined = second ? joinedVerdict(second.rule, v.verdict as VerdictName, e.score, second.score, e.guard) : undefined;
-        verdicts.push({ id: e.id, ...(joined?.drivenBy === 'classifier' ? { verdict: joined.verdict, rule: 'classifier' } : v) });
+        let call: { verdict: string; rule: string } = joined?.drivenBy === 'classifier' ? { verdict: joined.verdict, rule: 'classifier' } : v;
+        // A model learned from this deployment's own decisions decides over both (classifier/learned-model.ts).
+        if (learned) {
+          const row = storedRow(learned, FEATURE_NAMES.length, e.score, e.best ? (JSON.parse(e.best) as number[]) : null, second?.score);
+          const l = learnedVerdict(learned, row, call.verdict as VerdictName, !!(e.guard.noBackground ?? e.guard.noReference));
+          if (l.changed) call = { verdict: l.verdict, rule: 'learned' };
+        }
+        verdicts.push({ id: e.id, ...call });
       }
     }
     out.changed += store.settle(dep, rows, verdicts);

@@ -30,7 +30,7 @@ export interface ReportEvent {
   score: number;
   /** Which rule decided the verdict (kernels/deployment-calibration.ts): the fitted model's, or
    *  the deployment's own calibration. Clips and analyses older than the rule say `model`. */
-  rule: 'model' | 'deployment' | 'classifier';
+  rule: 'model' | 'deployment' | 'classifier' | 'learned';
   windows: ReportWindow[];
   decision: 'keep' | 'set-aside' | null;
   root: string;

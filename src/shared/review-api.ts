@@ -102,8 +102,9 @@ export interface ClipDetail {
 }
 
 /** Which rule decided a verdict: the fitted model's, the deployment's own calibration, or the
- *  change classifier's second opinion (classifier/combine.ts). */
-export type VerdictRule = 'model' | 'deployment' | 'classifier';
+ *  change classifier's second opinion (classifier/combine.ts), or the deployment's model learned
+ *  from people's decisions (classifier/learned-model.ts). */
+export type VerdictRule = 'model' | 'deployment' | 'classifier' | 'learned';
 
 /** What an event's features keep of the change classifier's opinion (pipeline/analyse-task.ts). */
 export interface ClassifierOpinion {

@@ -66,6 +66,10 @@ function RuleNote({ event }: { event: EventDetail }) {
   const second = (event.features as { classifier?: ClassifierOpinion } | null)?.classifier;
   if (event.rule === 'classifier' && second) {
     text = `Likely blank by the change classifier's second opinion: motion alone said ${second.motionVerdict} (score ${t(event.score)}), and nothing among the strongest changes looked like a subject to ${second.model} (${t(second.score)}, below ${t(second.rule.classifierBlank)}). The classifier was trained on generated scenes only: look before setting it aside.`;
+  } else if (event.rule === 'learned') {
+    text = event.verdict === 'likely-blank'
+      ? "Likely blank by the model learned from this deployment's reviewed triggers (movesift learn): it scores below the cut that kept every kept trigger it had not learned from. Look before setting it aside."
+      : "Not likely-blank: the model learned from this deployment's reviewed triggers (movesift learn) scores it like the triggers people kept here.";
   } else if (!c) {
     return null;
   } else if (event.rule === 'deployment') {
@@ -77,7 +81,7 @@ function RuleNote({ event }: { event: EventDetail }) {
   else if (c.cut > c.fittedBlank) text = `Decided by the fitted model (blank below ${t(c.fittedBlank)}); this deployment's own calibration (blank below ${t(c.cut)}) did not change it.`;
   else text = `Decided by the fitted model (blank below ${t(c.fittedBlank)}); this deployment's own triggers gave no reason to move it.`;
   return (
-    <div className={`rule-note${event.rule === 'deployment' || event.rule === 'classifier' ? ' rule-deployment' : ''}`} data-testid="rule-note" data-rule={event.rule}>
+    <div className={`rule-note${event.rule !== 'model' ? ' rule-deployment' : ''}`} data-testid="rule-note" data-rule={event.rule}>
       {text}
     </div>
   );

@@ -1,15 +1,16 @@
 /**
- * Learning a deployment from the reviewer's decisions (issue 19, item 4): the core, pure of the
+ * A deployment's model learned from the reviewer's decisions: the core, pure of the
  * ledger. Reviewed events in (keep = a subject, set-aside = blank), each with its motion score,
  * its best track's features and, when the scan had one, the classifier's opinion; a model out
  * that says how likely an undecided event of that deployment is to hold a subject, with its
  * blank cut, its k-fold recall and blank share, and its ONNX export.
  *
  * The model: an L2-regularised logistic regression (src/shared/stats/logistic.ts) on the inputs
- * of inputRow, standardised. The blank cut keeps every kept event it learned from, below the
- * lowest such score by CUT_MARGIN. Judged out of fold before it is offered: in each of FOLDS
- * folds the model and its cut are fitted on the others and applied to the held fold, so the
- * recall and blank share shown are what the rule did on decisions it had not seen.
+ * of inputRow, standardised. The blank cut lies below the
+ * lowest out-of-fold score of a kept event by CUT_MARGIN spreads. Judged out of fold before it
+ * is offered: in each of FOLDS folds the model and its cut are made from the others and applied
+ * to the held fold, so the recall and blank share shown are what the rule did on decisions it
+ * had not seen.
  *
  * It refuses, saying how many more of each decision it needs, below MIN_PER_DECISION of either.
  *
@@ -17,7 +18,7 @@
  */
 /** Scores are clipped to [EDGE, 1 - EDGE] before a logit (as kernels/deployment-calibration.ts does). */
 const EDGE = 1e-4;
-import { writeOnnx } from '../classifier/onnx-graph.js';
+import { writeOnnx } from './onnx-graph.js';
 import { invalidArgument, MovesiftError } from '../shared/errors.js';
 import { fitLogistic } from '../shared/stats/logistic.js';
 
@@ -27,10 +28,12 @@ export const LearnErrorCode = { tooFew: 'E_LEARN_TOO_FEW' } as const;
  *  per held fold, and a cut that does not rest on one or two kept events). */
 export const MIN_PER_DECISION = 10;
 export const FOLDS = 5;
-/** The blank cut lies this factor below the lowest score of a kept event learned from (our choice). */
-export const CUT_MARGIN = 0.8;
-/** L2 penalty on the standardised weights (our choice: strong, for tens of decisions and a dozen inputs). */
-export const PENALTY = 10;
+/** The blank cut lies this many standard deviations of the kept events' scores (as logits) below
+ *  the lowest of them (our choice: the lowest of a dozen or two kept events is not the lowest of
+ *  the next hundred). */
+export const CUT_MARGIN = 1;
+/** L2 penalty on the standardised weights (our choice, among 0.3 to 10 on invented decisions: docs/classifier.md). */
+export const PENALTY = 1;
 
 export interface ReviewedEvent {
   id: string;
@@ -86,7 +89,33 @@ function scoreOf(m: { mean: number[]; std: number[]; weights: number[]; bias: nu
   return 1 / (1 + Math.exp(-z));
 }
 
-const cutOf = (scores: number[], labels: number[]) => CUT_MARGIN * Math.min(...scores.filter((_, i) => labels[i]));
+/** Below the lowest kept score by CUT_MARGIN standard deviations of the kept scores, in logits. */
+function cutOf(scores: number[], labels: number[]): number {
+  const z = scores.filter((_, i) => labels[i]).map(logit);
+  const mean = z.reduce((a, b) => a + b, 0) / z.length;
+  const sd = Math.sqrt(z.reduce((a, b) => a + (b - mean) ** 2, 0) / Math.max(1, z.length - 1));
+  return 1 / (1 + Math.exp(-(Math.min(...z) - CUT_MARGIN * sd)));
+}
+
+/** Folds dealt in turn within each decision, so every fold holds both. */
+function dealFolds(labels: readonly number[]): number[] {
+  let k = 0, s = 0;
+  return labels.map((l) => (l ? k++ : s++) % FOLDS);
+}
+
+/** Scores of each row by a model fitted without its fold (out of fold). */
+function outOfFold(rows: number[][], labels: number[]): number[] {
+  const fold = dealFolds(labels);
+  const out = new Array<number>(rows.length);
+  for (let f = 0; f < FOLDS; f++) {
+    const tr = rows.map((_, i) => i).filter((i) => fold[i] !== f);
+    const m = fit(tr.map((i) => rows[i]), tr.map((i) => labels[i]));
+    rows.forEach((r, i) => {
+      if (fold[i] === f) out[i] = scoreOf(m, r);
+    });
+  }
+  return out;
+}
 
 export function learnFromDecisions(events: readonly ReviewedEvent[], featureNames: readonly string[]): LearnedModel {
   const kept = events.filter((e) => e.keep).length;
@@ -98,15 +127,16 @@ export function learnFromDecisions(events: readonly ReviewedEvent[], featureName
   const withOpinion = events.every((e) => e.opinion !== undefined);
   const rows = events.map((e) => inputRow(e, featureNames.length, withOpinion));
   const labels = events.map((e) => (e.keep ? 1 : 0));
-  // Folds dealt in turn within each decision, so every fold holds both.
-  const fold = new Array<number>(events.length);
-  let k = 0, s = 0;
-  events.forEach((e, i) => (fold[i] = e.keep ? k++ % FOLDS : s++ % FOLDS));
+  // The cut comes from scores of decisions the model had not seen (a model scores the events it
+  // learned from higher than the next ones). Judged one level further out: each fold's model and
+  // cut are made from the other folds alone (the cut from their own out-of-fold scores).
+  const fold = dealFolds(labels);
   let keptKept = 0, blankCalled = 0;
   for (let f = 0; f < FOLDS; f++) {
     const tr = rows.map((_, i) => i).filter((i) => fold[i] !== f);
-    const m = fit(tr.map((i) => rows[i]), tr.map((i) => labels[i]));
-    const cut = cutOf(tr.map((i) => scoreOf(m, rows[i])), tr.map((i) => labels[i]));
+    const trRows = tr.map((i) => rows[i]), trLabels = tr.map((i) => labels[i]);
+    const m = fit(trRows, trLabels);
+    const cut = cutOf(outOfFold(trRows, trLabels), trLabels);
     rows.forEach((r, i) => {
       if (fold[i] !== f) return;
       const p = scoreOf(m, r);
@@ -118,7 +148,7 @@ export function learnFromDecisions(events: readonly ReviewedEvent[], featureName
   return {
     inputs: inputNames(featureNames, withOpinion),
     mean: m.mean, std: m.std, weights: m.weights, bias: m.bias,
-    cut: cutOf(rows.map((r) => scoreOf(m, r)), labels),
+    cut: cutOf(outOfFold(rows, labels), labels),
     folds: { recall: keptKept / kept, keptKept, kept, blankShare: blankCalled / setAside, blankCalled, setAside },
     learnedFrom: events.map((e) => e.id),
   };
@@ -139,4 +169,21 @@ export function learnedGraph(m: LearnedModel, name: string): Uint8Array {
     layers: [{ op: 'dense', weights: Float32Array.from(w), bias: Float32Array.from([b]), out: 1, in: m.inputs.length }, { op: 'sigmoid' }],
     metadata: { inputs: m.inputs.join(','), cut: String(m.cut), learnedFrom: String(m.learnedFrom.length) },
   });
+}
+
+/** The inputs of a stored event for a learned model (its `inputs` say whether the classifier's opinion is one). */
+export function storedRow(m: LearnedModel, featureCount: number, score: number, best: readonly number[] | null, opinion: number | undefined): number[] {
+  return inputRow({ id: '', keep: false, score, best, opinion }, featureCount, m.inputs.includes('logitClassifierOpinion'));
+}
+
+/**
+ * The verdict where a learned model decides: likely-blank below its cut (never without a
+ * background from other triggers: the motion rule's guard holds), and at or above it no
+ * likely-blank at all (what the other rules called blank becomes unsure: this place's own
+ * decisions say it may hold a subject). `changed` when it differs from the other rules' verdict.
+ */
+export function learnedVerdict(m: LearnedModel, row: readonly number[], other: 'likely-blank' | 'unsure' | 'motion', noBackground: boolean): { verdict: 'likely-blank' | 'unsure' | 'motion'; changed: boolean } {
+  const below = learnedScore(m, row) < m.cut;
+  const verdict = below && !noBackground ? 'likely-blank' : other === 'likely-blank' ? 'unsure' : other;
+  return { verdict, changed: verdict !== other };
 }

@@ -1,5 +1,5 @@
 /**
- * Migration 7 widens `analyses.rule` to the classifier's call (classifier/combine.ts) and keeps
+ * Migration 7 widens `analyses.rule` to the classifier's and the learned model's calls and keeps
  * every rule an older ledger held, with the analyses' previews and windows untouched.
  */
 import Database from 'better-sqlite3';
@@ -30,6 +30,8 @@ describe('migration 7', () => {
     expect(db.prepare('SELECT id, rule FROM analyses ORDER BY id').all()).toEqual([{ id: 1, rule: 'deployment' }, { id: 2, rule: 'model' }, { id: 3, rule: null }]);
     expect(db.prepare('SELECT count(*) AS n FROM previews').get()).toEqual({ n: 1 });
     db.prepare("UPDATE analyses SET rule = 'classifier' WHERE id = 2").run();
+    db.prepare("UPDATE analyses SET rule = 'learned' WHERE id = 3").run();
+    expect(db.prepare('SELECT count(*) AS n FROM learned_models').get()).toEqual({ n: 0 });
     expect(() => db.prepare("UPDATE analyses SET rule = 'guess' WHERE id = 2").run()).toThrow(/CHECK/);
     db.close();
   });
