@@ -68,7 +68,7 @@ function RuleNote({ event }: { event: EventDetail }) {
     text = `Likely blank by the change classifier's second opinion: motion alone said ${second.motionVerdict} (score ${t(event.score)}), and nothing among the strongest changes looked like a subject to ${second.model} (${t(second.score)}, below ${t(second.rule.classifierBlank)}). The classifier was trained on generated scenes only: look before setting it aside.`;
   } else if (event.rule === 'learned') {
     text = event.verdict === 'likely-blank'
-      ? "Likely blank by the model learned from this deployment's reviewed triggers (movesift learn): it scores below the cut that kept every kept trigger it had not learned from. Look before setting it aside."
+      ? "Likely blank by the model learned from this deployment's reviewed triggers (movesift learn): it scores well below every trigger people kept here. That model learned from this place's decisions only: look before setting it aside."
       : "Not likely-blank: the model learned from this deployment's reviewed triggers (movesift learn) scores it like the triggers people kept here.";
   } else if (!c) {
     return null;
