@@ -6,9 +6,8 @@
  * blank cut, its k-fold recall and blank share, and its ONNX export.
  *
  * The model: an L2-regularised logistic regression (src/shared/stats/logistic.ts) on the inputs
- * of inputRow, standardised. The blank cut lies below the
- * lowest out-of-fold score of a kept event by CUT_MARGIN spreads. Judged out of fold before it
- * is offered: in each of FOLDS folds the model and its cut are made from the others and applied
+ * of inputRow, standardised. The blank cut lies CUT_MARGIN spreads below the lowest
+ * out-of-fold score of a kept event. Judged out of fold before it is offered: in each of FOLDS folds the model and its cut are made from the others and applied
  * to the held fold, so the recall and blank share shown are what the rule did on decisions it
  * had not seen.
  *
@@ -16,11 +15,12 @@
  *
  * Change together: the ONNX graph of learnedGraph with inputRow (the same inputs, same order).
  */
-/** Scores are clipped to [EDGE, 1 - EDGE] before a logit (as kernels/deployment-calibration.ts does). */
-const EDGE = 1e-4;
 import { writeOnnx } from './onnx-graph.js';
 import { invalidArgument, MovesiftError } from '../shared/errors.js';
 import { fitLogistic } from '../shared/stats/logistic.js';
+
+/** Scores are clipped to [EDGE, 1 - EDGE] before a logit (as kernels/deployment-calibration.ts does). */
+const EDGE = 1e-4;
 
 export const LearnErrorCode = { tooFew: 'E_LEARN_TOO_FEW' } as const;
 
