@@ -15,12 +15,11 @@
  *
  * Change together: the ONNX graph of learnedGraph with inputRow (the same inputs, same order).
  */
+import { logit } from '../kernels/deployment-calibration.js';
 import { writeOnnx } from './onnx-graph.js';
 import { invalidArgument, MovesiftError } from '../shared/errors.js';
 import { fitLogistic } from '../shared/stats/logistic.js';
 
-/** Scores are clipped to [EDGE, 1 - EDGE] before a logit (as kernels/deployment-calibration.ts does). */
-const EDGE = 1e-4;
 
 export const LearnErrorCode = { tooFew: 'E_LEARN_TOO_FEW' } as const;
 
@@ -60,10 +59,6 @@ export interface LearnedModel {
   learnedFrom: string[];
 }
 
-const logit = (p: number) => {
-  const q = Math.min(1 - EDGE, Math.max(EDGE, p));
-  return Math.log(q / (1 - q));
-};
 
 /** The inputs of one event: logit of the motion score, the best track's features (zeros and a
  *  flag when it had none) and, if every event has one, logit of the classifier's opinion. */

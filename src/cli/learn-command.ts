@@ -5,8 +5,7 @@ import { ExitCode, usageError } from './cli-errors.js';
 import { openLedger } from '../ledger/open-ledger.js';
 import { createLearnedStore } from '../ledger/learned-store.js';
 import { deploymentPass } from '../pipeline/deployment-pass.js';
-import { learnDeployments } from '../pipeline/learn.js';
-import { LearnErrorCode, MIN_PER_DECISION } from '../classifier/learned-model.js';
+import { learnDeployments, LearnErrorCode, MIN_PER_DECISION } from '../pipeline/learn.js';
 import { MovesiftError } from '../shared/errors.js';
 
 export const LEARN_HELP = `Usage: movesift learn <ledger> [--deployment <id>]... [--use | --forget]

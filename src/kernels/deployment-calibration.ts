@@ -64,7 +64,8 @@ export interface CalibrationEvent {
 }
 
 const EPS = 1e-4;
-const logit = (p: number): number => {
+/** ln(p / (1 - p)), p clipped to [1e-4, 1 - 1e-4] so a score of 0 or 1 stays finite. */
+export const logit = (p: number): number => {
   const q = Math.min(1 - EPS, Math.max(EPS, p));
   return Math.log(q / (1 - q));
 };

@@ -44,3 +44,6 @@ export function learnDeployments(db: Ledger, o: { deployments?: string[]; use: b
   }
   return out;
 }
+
+/** What the command line reports of learning (it reaches the classifier layer only through the pipeline). */
+export { LearnErrorCode, MIN_PER_DECISION } from '../classifier/learned-model.js';
